@@ -1,0 +1,27 @@
+"""airway: obstetric airway plans from one bedside assessment.
+
+Library first: :func:`read_assessment` (or :func:`parse_assessment`) gives a
+validated :class:`Assessment`; :func:`build_plan` turns it into a :class:`Plan`;
+the renderers in :mod:`airway.render_text`, :mod:`airway.render_markdown` and
+:mod:`airway.render_json` format it. The command line (:mod:`airway.cli`) is a
+thin layer over these.
+"""
+
+__version__ = "0.1.0"
+
+from .assessment import Assessment  # noqa: E402
+from .errors import AirwayError, InputError  # noqa: E402
+from .loading import assessment_from_mapping, parse_assessment, read_assessment  # noqa: E402
+from .plan import Plan, build_plan  # noqa: E402
+
+__all__ = [
+    "AirwayError",
+    "Assessment",
+    "InputError",
+    "Plan",
+    "__version__",
+    "assessment_from_mapping",
+    "build_plan",
+    "parse_assessment",
+    "read_assessment",
+]

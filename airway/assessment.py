@@ -1,0 +1,173 @@
+"""The assessment of one woman: the validated input to every plan.
+
+Every bedside finding is optional. ``None`` means *not assessed* and is shown
+as such in the plan; it never stands in for a normal finding. Field names carry
+their units. Ranges are the limits of physiological plausibility: outside
+them a value is refused; inside them but improbable (see
+:func:`airway.plan.build_plan`) it gives a warning in the plan.
+"""
+
+from __future__ import annotations
+
+from typing import Annotated, Literal
+
+from pydantic import BaseModel, ConfigDict, Field, field_validator
+from pydantic_core import PydanticCustomError
+
+OedemaSign = Literal[
+    "voice_change",
+    "stridor",
+    "facial_oedema",
+    "tongue_swelling",
+    "new_snoring",
+    "breathless_lying_flat",
+]
+PreeclampsiaStatus = Literal["none", "without_severe_features", "with_severe_features"]
+IntubationHistory = Literal["none", "difficult", "failed"]
+Grade3 = Literal["low", "moderate", "high"]
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(frozen=True, extra="forbid", str_strip_whitespace=True)
+
+
+def _num(lo: float, hi: float, unit: str, what: str) -> object:
+    return Field(
+        default=None, ge=lo, le=hi, description=f"{what}, in {unit}; {lo}-{hi}",
+        json_schema_extra={"unit": unit} if unit not in ("class", "category") else None,
+    )
+
+
+class Patient(_Model):
+    """Who she is and where she is in pregnancy."""
+
+    weight_kg: Annotated[
+        float,
+        Field(ge=30, le=300, description="Current body weight, in kg; 30-300",
+              json_schema_extra={"unit": "kg"}),
+    ]
+    height_cm: Annotated[float | None, _num(120, 210, "cm", "Height in centimetres")] = None
+    age_years: Annotated[int | None, _num(12, 65, "years", "Age in completed years")] = None
+    booking_weight_kg: Annotated[
+        float | None, _num(30, 300, "kg", "Weight at booking in kilograms")
+    ] = None
+    gestation_weeks: Annotated[
+        float | None, _num(20, 44, "weeks", "Gestation in completed weeks")
+    ] = None
+    in_labour: bool | None = Field(default=None, description="In labour now (true/false)")
+    haemoglobin_g_per_l: Annotated[
+        float | None, _num(40, 200, "g/L", "Latest haemoglobin in grams per litre")
+    ] = None
+
+    @field_validator("height_cm", mode="before")
+    @classmethod
+    def _height_not_metres(cls, value: object) -> object:
+        if isinstance(value, int | float) and not isinstance(value, bool) and 0 < value < 3:
+            raise PydanticCustomError(
+                "height_in_metres",
+                "looks like metres; give the height in centimetres, for example "
+                "{suggest} (allowed 120-210 cm)",
+                {"suggest": round(float(value) * 100)},
+            )
+        return value
+
+    @field_validator("weight_kg", "booking_weight_kg", mode="before")
+    @classmethod
+    def _weight_not_pounds_hint(cls, value: object) -> object:
+        # A weight above 300 is refused by the range; say why it may have happened.
+        if isinstance(value, int | float) and not isinstance(value, bool) and 300 < value <= 700:
+            raise PydanticCustomError(
+                "weight_in_pounds",
+                "above 300 kg; if this is in pounds, divide by 2.2 (allowed 30-300 kg)",
+            )
+        return value
+
+
+class AirwayExam(_Model):
+    """Bedside airway examination. Leave a key out when it was not assessed."""
+
+    mallampati: Annotated[
+        int | None, _num(1, 4, "class", "Modified Mallampati class (Samsoon & Young)")
+    ] = None
+    thyromental_cm: Annotated[float | None, _num(1, 15, "cm", "Thyromental distance")] = None
+    sternomental_cm: Annotated[float | None, _num(3, 30, "cm", "Sternomental distance")] = None
+    mouth_opening_cm: Annotated[
+        float | None, _num(0, 8, "cm", "Inter-incisor gap, mouth fully open")
+    ] = None
+    neck_circumference_cm: Annotated[
+        float | None, _num(20, 80, "cm", "Neck circumference at the thyroid cartilage")
+    ] = None
+    upper_lip_bite: Annotated[
+        int | None, _num(1, 3, "class", "Upper lip bite test class (Khan 2003)")
+    ] = None
+    neck_movement: Literal["normal", "reduced", "fixed"] | None = None
+    jaw_protrusion: Literal["normal", "limited"] | None = None
+    short_neck: bool | None = None
+    receding_mandible: bool | None = None
+    protruding_incisors: bool | None = None
+    large_breasts: bool | None = None
+
+
+class History(_Model):
+    """Airway history."""
+
+    intubation: IntubationHistory | None = Field(
+        default=None, description="Previous tracheal intubation: none, difficult or failed"
+    )
+    difficult_mask_ventilation: bool | None = None
+    obstructive_sleep_apnoea: bool | None = None
+    snoring: bool | None = None
+
+
+class Preeclampsia(_Model):
+    """Hypertensive disease of pregnancy and signs of airway oedema."""
+
+    status: PreeclampsiaStatus | None = None
+    signs: tuple[OedemaSign, ...] = Field(
+        default=(), description="Signs of airway oedema present now (empty: none found)"
+    )
+    platelets_10e9_per_l: Annotated[
+        float | None, _num(1, 1000, "x10^9/L", "Latest platelet count")
+    ] = None
+
+    @field_validator("signs")
+    @classmethod
+    def _no_repeats(cls, value: tuple[str, ...]) -> tuple[str, ...]:
+        return tuple(sorted(set(value)))
+
+
+class Context(_Model):
+    """The operation and team: what the wake-or-proceed decision needs."""
+
+    urgency_category: Annotated[
+        int | None,
+        _num(1, 4, "category", "Caesarean urgency category (Lucas 2000); absent for clinic"),
+    ] = None
+    anaesthetist: Literal["senior", "intermediate", "junior"] | None = Field(
+        default=None, description="Experience of the anaesthetist who will intubate"
+    )
+    surgical_complexity: Grade3 | None = Field(
+        default=None, description="Expected surgical complexity (e.g. high: placenta accreta)"
+    )
+    aspiration_risk: Grade3 | None = Field(
+        default=None, description="Aspiration risk; derived from labour when absent"
+    )
+    regional_alternative: Literal["feasible", "difficult", "impossible"] | None = Field(
+        default=None,
+        description="Could the operation go ahead under regional or awake technique instead?",
+    )
+
+
+class Assessment(_Model):
+    """One assessment of one woman."""
+
+    patient: Patient
+    airway: AirwayExam = AirwayExam()
+    history: History = History()
+    preeclampsia: Preeclampsia = Preeclampsia()
+    context: Context = Context()
+    label: str | None = Field(
+        default=None,
+        max_length=120,
+        description="Free-text label shown on the plan (e.g. a clinic reference); optional",
+    )

@@ -1,0 +1,158 @@
+"""The wake-or-proceed decision, made before induction.
+
+The factors are those the OAA/DAS 2015 obstetric guidance lists for deciding,
+before induction, whether to wake the mother or proceed with surgery if
+intubation fails (Mushambi 2015, Table 1): urgency from the maternal or fetal
+condition, the anaesthetist's seniority, obesity, surgical complexity,
+aspiration risk and how hard an alternative (regional or awake) technique
+would be. The direction each grade points is from memory of that guidance;
+the points and the way they are summed are this project's rule. The tool
+recommends; the clinician ticks the final decision.
+"""
+
+from __future__ import annotations
+
+from pydantic import BaseModel, ConfigDict
+
+from .assessment import Assessment
+from .body import BodySize
+from .factors import OEDEMA_SIGNS_NOT_STRIDOR, PLATELETS_LOW_10E9
+from .sources import Evidence
+
+FACTOR_LIST_EVIDENCE = Evidence("mushambi2015", "published", "factor list (Table 1)")
+GRADING_EVIDENCE = Evidence("mushambi2015", "from_memory", "direction of each grade")
+POINTS_EVIDENCE = Evidence("project", "project_rule", "points per grade and their sum")
+
+URGENCY_POINTS = {1: 2, 2: 1, 3: -1, 4: -2}
+URGENCY_TEXT = {
+    1: "category 1: immediate threat to the life of the woman or fetus",
+    2: "category 2: compromise, not immediately life-threatening",
+    3: "category 3: early delivery needed, no compromise",
+    4: "category 4: at a time to suit the woman and the team",
+}
+ANAESTHETIST_POINTS = {"senior": 1, "intermediate": 0, "junior": -1}
+GRADE_POINTS = {"low": 1, "moderate": 0, "high": -1}  # surgery, aspiration
+ALTERNATIVE_POINTS = {"feasible": -1, "difficult": 0, "impossible": 1}
+
+
+class DecisionFactor(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    name: str
+    finding: str
+    points: int
+    points_to: str  # "wake", "proceed", "neither", "unknown"
+    derived: bool  # derived from other findings rather than stated
+
+
+class Decision(BaseModel):
+    """The pre-made decision for the moment intubation has failed."""
+
+    model_config = ConfigDict(frozen=True)
+    recommendation: str  # "wake", "proceed", "balanced", "decide_on_the_day"
+    total: int
+    factors: tuple[DecisionFactor, ...]
+    if_category: dict[str, str]  # when urgency is not yet known: category -> recommendation
+    conditions: tuple[str, ...]
+    basis: tuple[str, ...]
+
+
+def _direction(points: int | None) -> str:
+    if points is None:
+        return "unknown"
+    return "proceed" if points > 0 else "wake" if points < 0 else "neither"
+
+
+def _factor(name: str, finding: str, points: int | None, derived: bool = False) -> DecisionFactor:
+    return DecisionFactor(
+        name=name, finding=finding, points=points or 0, points_to=_direction(points),
+        derived=derived,
+    )
+
+
+def _obesity(body: BodySize) -> DecisionFactor:
+    if body.bmi is None:
+        return _factor("Obesity", "BMI not known (height missing)", None)
+    b = body.bmi
+    points = 1 if b < 30 else 0 if b < 35 else -1 if b < 40 else -2
+    return _factor("Obesity", f"BMI {b:.1f}", points)
+
+
+def _aspiration(a: Assessment) -> DecisionFactor:
+    stated = a.context.aspiration_risk
+    if stated is not None:
+        return _factor("Aspiration risk", stated, GRADE_POINTS[stated])
+    if a.patient.in_labour:
+        return _factor("Aspiration risk", "high (in labour)", GRADE_POINTS["high"], derived=True)
+    return _factor("Aspiration risk", "not stated", None)
+
+
+def _alternative(a: Assessment) -> DecisionFactor:
+    stated = a.context.regional_alternative
+    if stated is not None:
+        return _factor("Alternative technique (regional or awake)", stated,
+                       ALTERNATIVE_POINTS[stated])
+    platelets = a.preeclampsia.platelets_10e9_per_l
+    if platelets is not None and platelets < PLATELETS_LOW_10E9:
+        return _factor("Alternative technique (regional or awake)",
+                       f"difficult (platelets {platelets:g} x10^9/L)",
+                       ALTERNATIVE_POINTS["difficult"], derived=True)
+    return _factor("Alternative technique (regional or awake)", "not stated", None)
+
+
+def _anticipated_hazards(a: Assessment) -> list[DecisionFactor]:
+    # Guidance adds these after failure; known before induction they already lean to waking.
+    out = []
+    signs = set(a.preeclampsia.signs)
+    if "stridor" in signs or signs & set(OEDEMA_SIGNS_NOT_STRIDOR):
+        out.append(_factor("Airway hazard foreseen", "airway oedema signs", -1))
+    if a.history.difficult_mask_ventilation:
+        out.append(_factor("Airway hazard foreseen", "previous difficult mask ventilation", -1))
+    return out
+
+
+def _recommend(total: int) -> str:
+    return "proceed" if total > 0 else "wake" if total < 0 else "balanced"
+
+
+def decide(assessment: Assessment, body: BodySize) -> Decision:
+    """Pre-induction recommendation, with the direction of every factor."""
+    c = assessment.context
+    others = [
+        _factor("Anaesthetist", c.anaesthetist or "not stated",
+                None if c.anaesthetist is None else ANAESTHETIST_POINTS[c.anaesthetist]),
+        _obesity(body),
+        _factor("Surgical complexity", c.surgical_complexity or "not stated",
+                None if c.surgical_complexity is None else GRADE_POINTS[c.surgical_complexity]),
+        _aspiration(assessment),
+        _alternative(assessment),
+        *_anticipated_hazards(assessment),
+    ]
+    rest = sum(f.points for f in others)
+    if c.urgency_category is None:
+        urgency = _factor("Maternal or fetal condition (urgency)",
+                          "not known yet (clinic plan)", None)
+        recommendation = "decide_on_the_day"
+        if_category = {str(k): _recommend(rest + p) for k, p in URGENCY_POINTS.items()}
+    else:
+        cat = c.urgency_category
+        urgency = _factor("Maternal or fetal condition (urgency)", URGENCY_TEXT[cat],
+                          URGENCY_POINTS[cat])
+        recommendation = _recommend(rest + URGENCY_POINTS[cat])
+        if_category = {}
+    factors = (urgency, *others)
+    return Decision(
+        recommendation=recommendation,
+        total=sum(f.points for f in factors),
+        factors=factors,
+        if_category=if_category,
+        conditions=(
+            "Proceed only while the supraglottic airway (or face mask) gives adequate "
+            "oxygenation and ventilation; if it does not, wake her.",
+            "Re-judge after failure: a second-generation device with good ventilation "
+            "supports proceeding; oedema, bleeding, trauma or difficult ventilation "
+            "support waking.",
+            "If oxygenation fails: can't intubate, can't oxygenate: front-of-neck access.",
+        ),
+        basis=(FACTOR_LIST_EVIDENCE.describe(), GRADING_EVIDENCE.describe(),
+               POINTS_EVIDENCE.describe()),
+    )

@@ -1,0 +1,195 @@
+"""Rapid-sequence induction doses computed on the right body-size scalar.
+
+A dose here is a calculation aid: the anaesthetist checks and titrates it.
+Where sources disagree on the scalar, the dose carries the alternatives.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict
+
+from .body import BodySize
+from .sources import Evidence
+
+Scalar = Literal["total", "lean", "ideal", "adjusted"]
+
+SCALAR_LABEL = {
+    "total": "total body weight",
+    "lean": "lean body weight",
+    "ideal": "ideal body weight",
+    "adjusted": "adjusted body weight",
+}
+
+# Obesity, for the choice of scalar: WHO obese class I or above (BMI >= 30),
+# applied to the current weight (project rule: the airway is managed at term).
+OBESE_BMI = 30.0
+
+
+@dataclass(frozen=True)
+class Drug:
+    """One catalogued drug: mg/kg range, scalars, concentration, evidence."""
+
+    name: str
+    label: str
+    role: str
+    mg_per_kg: tuple[float, float]
+    scalar_normal: Scalar
+    scalar_obese: Scalar
+    alternatives_obese: tuple[tuple[Scalar, str], ...]  # (scalar, source id)
+    mg_per_ml: float
+    dose_evidence: Evidence
+    scalar_evidence: Evidence
+    concentration_evidence: Evidence
+    note: str = ""
+
+
+DRUGS: tuple[Drug, ...] = (
+    Drug(
+        "propofol", "Propofol", "induction", (2.0, 2.5), "total", "lean",
+        (("adjusted", "nightingale2015"),),
+        10.0,
+        Evidence("valtonen1989", "published", "obstetric induction trials used 2-2.5 mg/kg"),
+        Evidence("nightingale2015", "published", "lean weight for induction in obesity"),
+        Evidence("common_practice", "common_practice", "1% emulsion"),
+        note="Sources disagree: lean-weight dosing was often insufficient "
+        "(Subramani 2017); 2 mg/kg adjusted weight has also been used. Titrate to effect.",
+    ),
+    Drug(
+        "thiopental", "Thiopental", "induction", (4.0, 5.0), "total", "lean",
+        (), 25.0,
+        Evidence("common_practice", "common_practice", "obstetric doses of 4-5 mg/kg"),
+        Evidence("nightingale2015", "published", "lean weight in obesity"),
+        Evidence("common_practice", "common_practice", "2.5% solution"),
+        note="Higher awareness risk than propofol (AAGBI/SOBA 2015).",
+    ),
+    Drug(
+        "suxamethonium", "Suxamethonium", "neuromuscular block", (1.0, 1.5), "total", "total",
+        (), 50.0,
+        Evidence("elorbany2010", "published", "1-1.5 mg/kg for rapid sequence induction"),
+        Evidence("lemmens2006", "published", "total weight, also in obesity"),
+        Evidence("common_practice", "common_practice", "50 mg/mL ampoules; check local stock"),
+        note="Desaturation comes before recovery from 1 mg/kg (Benumof 1997): "
+        "do not plan on waiting for it to wear off.",
+    ),
+    Drug(
+        "rocuronium", "Rocuronium", "neuromuscular block", (1.0, 1.2), "total", "lean",
+        (("ideal", "leykin2004"),), 10.0,
+        Evidence("williamson2011", "published", "1.2 mg/kg in obstetric rapid sequence induction"),
+        Evidence("nightingale2015", "published",
+                 "lean weight in obesity, never total weight (prolongs the block)"),
+        Evidence("common_practice", "common_practice", "10 mg/mL"),
+        note="Sources disagree on the scalar in obesity: lean weight (AAGBI/SOBA 2015) "
+        "or ideal weight (Leykin 2004).",
+    ),
+    Drug(
+        "sugammadex", "Sugammadex (immediate reversal)", "reversal", (16.0, 16.0), "total",
+        "total", (), 100.0,
+        Evidence("sugammadex_label", "published",
+                 "16 mg/kg for immediate reversal of rocuronium 1.2 mg/kg"),
+        Evidence("sugammadex_label", "from_memory", "actual body weight"),
+        Evidence("sugammadex_label", "published", "100 mg/mL"),
+        note="Draw up and keep ready whenever rocuronium is used. Reversal does not "
+        "restore the airway: it only allows spontaneous breathing.",
+    ),
+)
+
+BY_NAME = {d.name: d for d in DRUGS}
+
+
+class Alternative(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    scalar: str
+    weight_kg: float
+    dose_mg_low: float
+    dose_mg_high: float
+    source: str
+
+
+class Dose(BaseModel):
+    """One computed dose range."""
+
+    model_config = ConfigDict(frozen=True)
+    drug: str
+    label: str
+    role: str
+    mg_per_kg_low: float
+    mg_per_kg_high: float
+    scalar: str
+    scalar_weight_kg: float
+    dose_mg_low: float
+    dose_mg_high: float
+    mg_per_ml: float
+    volume_ml_low: float
+    volume_ml_high: float
+    scaled_as_intended: bool  # False when height was missing and total weight stood in
+    alternatives: tuple[Alternative, ...]
+    basis: str
+    note: str
+
+
+def _weight(body: BodySize, scalar: Scalar) -> float | None:
+    return {
+        "total": body.weight_kg,
+        "lean": body.lean_weight_kg,
+        "ideal": body.ideal_weight_kg,
+        "adjusted": body.adjusted_weight_kg,
+    }[scalar]
+
+
+def _mg(mg_per_kg: float, kg: float) -> float:
+    return round(mg_per_kg * kg, 1)
+
+
+def compute_dose(drug: Drug, body: BodySize) -> Dose:
+    """Dose range for one drug and one woman."""
+    obese = body.bmi is not None and body.bmi >= OBESE_BMI
+    wanted: Scalar = drug.scalar_obese if obese else drug.scalar_normal
+    kg = _weight(body, wanted)
+    scaled = kg is not None
+    note = drug.note
+    if body.bmi is None and drug.scalar_obese != "total":
+        scaled = False
+        note = (
+            f"Height missing: not scaled to {SCALAR_LABEL[drug.scalar_obese]}; shown on "
+            "total weight, which overestimates the dose in obesity. " + note
+        ).strip()
+    if kg is None:
+        wanted, kg = "total", body.weight_kg
+    low, high = drug.mg_per_kg
+    alternatives = []
+    if obese:
+        for scalar, source in drug.alternatives_obese:
+            alt_kg = _weight(body, scalar)
+            if alt_kg is not None:
+                alternatives.append(Alternative(
+                    scalar=scalar, weight_kg=alt_kg, dose_mg_low=_mg(low, alt_kg),
+                    dose_mg_high=_mg(high, alt_kg), source=source))
+    basis = "; ".join(
+        e.describe() for e in (drug.dose_evidence, drug.scalar_evidence, drug.concentration_evidence)
+    )
+    return Dose(
+        drug=drug.name,
+        label=drug.label,
+        role=drug.role,
+        mg_per_kg_low=low,
+        mg_per_kg_high=high,
+        scalar=wanted,
+        scalar_weight_kg=round(kg, 2),
+        dose_mg_low=_mg(low, kg),
+        dose_mg_high=_mg(high, kg),
+        mg_per_ml=drug.mg_per_ml,
+        volume_ml_low=round(low * kg / drug.mg_per_ml, 1),
+        volume_ml_high=round(high * kg / drug.mg_per_ml, 1),
+        scaled_as_intended=scaled,
+        alternatives=tuple(alternatives),
+        basis=basis,
+        note=note,
+    )
+
+
+def compute_doses(body: BodySize) -> tuple[Dose, ...]:
+    """All catalogued drugs for one woman."""
+    return tuple(compute_dose(d, body) for d in DRUGS)

@@ -1,0 +1,122 @@
+"""Read an assessment from TOML or JSON (a file, or ``-`` for stdin).
+
+Every problem is collected and raised at once as an :class:`InputError` that
+names the field, the value given and what is allowed.
+"""
+
+from __future__ import annotations
+
+import json
+import sys
+import tomllib
+from collections.abc import Mapping
+from pathlib import Path
+from typing import Any
+
+from pydantic import BaseModel, ValidationError
+
+from .assessment import Assessment
+from .errors import InputError, Problem
+
+_RANGE_ERRORS = ("less_than_equal", "greater_than_equal", "less_than", "greater_than")
+_MESSAGES = {
+    "extra_forbidden": "unknown key; check its spelling (see `airway schema`)",
+    "missing": "required but missing",
+}
+
+
+def _where(loc: tuple[int | str, ...]) -> str:
+    out = ""
+    for part in loc:
+        out += f"[{part}]" if isinstance(part, int) else (f".{part}" if out else str(part))
+    return out or "(top level)"
+
+
+def _field_range(model: type[BaseModel], loc: tuple[int | str, ...]) -> str | None:
+    """'between 20 and 44 (weeks)' for a field with ge/le bounds, found by its location."""
+    current: Any = model
+    info = None
+    for part in loc:
+        if not (isinstance(current, type) and issubclass(current, BaseModel)):
+            return None
+        info = current.model_fields.get(str(part))
+        if info is None:
+            return None
+        current = info.annotation
+    if info is None:
+        return None
+    lo = next((m.ge for m in info.metadata if getattr(m, "ge", None) is not None), None)
+    hi = next((m.le for m in info.metadata if getattr(m, "le", None) is not None), None)
+    if lo is None or hi is None:
+        return None
+    extra = info.json_schema_extra if isinstance(info.json_schema_extra, dict) else {}
+    unit = f" {extra['unit']}" if "unit" in extra else ""
+    return f"must be between {lo:g} and {hi:g}{unit}"
+
+
+def problems_from_validation(
+    exc: ValidationError, model: type[BaseModel] | None = None
+) -> list[Problem]:
+    """Turn pydantic's errors into problems a clinician can act on."""
+    problems = []
+    for err in exc.errors(include_url=False):
+        kind = err["type"]
+        message = _MESSAGES.get(kind, err["msg"])
+        if kind in _RANGE_ERRORS and model is not None:
+            message = _field_range(model, err["loc"]) or message
+        if kind == "literal_error":
+            message = "must be one of " + err.get("ctx", {}).get("expected", "the listed values")
+        has_value = kind not in ("missing",) and not isinstance(err.get("input"), dict)
+        problems.append(Problem(_where(err["loc"]), message, err.get("input"), has_value))
+    return problems
+
+
+def assessment_from_mapping(data: Mapping[str, Any], source: str = "input") -> Assessment:
+    """Validate a decoded mapping (from TOML, JSON or command-line flags)."""
+    try:
+        return Assessment.model_validate(data)
+    except ValidationError as exc:
+        raise InputError(source, problems_from_validation(exc, Assessment)) from None
+
+
+def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessment:
+    """Decode TOML or JSON text and validate it.
+
+    Args:
+        text: the file's contents.
+        source: the name shown in error messages.
+        fmt: ``"toml"`` or ``"json"``; guessed from the first character when None.
+    """
+    if not text.strip():
+        raise InputError(source, [Problem("(file)", "is empty; expected a TOML or JSON assessment")])
+    if fmt is None:
+        fmt = "json" if text.lstrip().startswith("{") else "toml"
+    try:
+        data = json.loads(text) if fmt == "json" else tomllib.loads(text)
+    except json.JSONDecodeError as exc:
+        where = f"line {exc.lineno}, column {exc.colno}"
+        raise InputError(source, [Problem(where, f"not valid JSON: {exc.msg}")]) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(source, [Problem("(syntax)", f"not valid TOML: {exc}")]) from None
+    if not isinstance(data, dict):
+        raise InputError(source, [Problem("(top level)", "must be a table of sections")])
+    return assessment_from_mapping(data, source)
+
+
+def read_assessment(path: str | Path) -> Assessment:
+    """Read an assessment from a ``.toml`` or ``.json`` file, or ``-`` for stdin."""
+    name = str(path)
+    if name == "-":
+        return parse_assessment(sys.stdin.read(), "<stdin>")
+    file = Path(path)
+    try:
+        raw = file.read_bytes()
+    except OSError as exc:
+        raise InputError(name, [Problem("(file)", exc.strerror or str(exc))]) from None
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise InputError(name, [Problem("(file)", "is not UTF-8 text")]) from None
+    suffix = file.suffix.lower()
+    fmt = {".toml": "toml", ".json": "json"}.get(suffix)
+    return parse_assessment(text, name, fmt)

@@ -1,0 +1,146 @@
+"""The plan as Markdown, for pasting into an electronic record."""
+
+from __future__ import annotations
+
+from .doses import SCALAR_LABEL
+from .plan import Plan
+from .render_text import dose_text, per_kg_text, weight_text
+
+_DECISION = {
+    "wake": "**Wake** her",
+    "proceed": "**Proceed** with surgery",
+    "balanced": "**Balanced**: the senior anaesthetist decides before induction",
+    "decide_on_the_day": "**Decide on the day**, once the urgency is known",
+}
+
+
+def _esc(text: str) -> str:
+    """Escape characters that would change Markdown structure in table cells."""
+    return text.replace("\\", "\\\\").replace("|", "\\|").replace("<", "&lt;")
+
+
+def render_markdown(plan: Plan) -> str:
+    """The full plan as GitHub-flavoured Markdown."""
+    r, b, e, d = plan.risk, plan.body, plan.equipment, plan.decision
+    g = plan.generated_by
+    t = e.tracheal_tube_mm
+    out: list[str] = []
+    add = out.append
+    title = "# Airway plan" + (f": {_esc(plan.assessment.label)}" if plan.assessment.label else "")
+    add(title)
+    add("")
+    for c in plan.cautions[:2]:
+        add(f"> {c}")
+        add(">")
+    out.pop()
+    add("")
+    add(f"## Level {r.level} of 4: {r.label}")
+    add("")
+    lo, mid, hi = r.thresholds
+    add(f"Index **{r.index:.2f}** (level 2 from {lo:.2f}, 3 from {mid:.2f}, 4 from {hi:.2f}). "
+        + r.note)
+    if r.overrides:
+        add("")
+        add("Forced to level 4 by: " + ", ".join(r.overrides) + ".")
+    add("")
+    add("| Factor | Finding | Weight | Adds | Source |")
+    add("|---|---|---|---:|---|")
+    for f in r.factors:
+        if f.present:
+            add(f"| {_esc(f.label)} | {_esc(f.detail or 'present')} | {weight_text(f)} | "
+                f"{f.contribution:.2f} | {_esc(f.evidence)} |")
+    if plan.not_assessed:
+        add("")
+        add("**Not assessed:** " + ", ".join(plan.not_assessed) + ".")
+    if plan.preparation:
+        add("")
+        add("### Prepare because of")
+        add("")
+        for p in plan.preparation:
+            add(f"- {_esc(p)}")
+    add("")
+    add("## Body size")
+    add("")
+    if b.bmi is None:
+        add(f"Weight {b.weight_kg:g} kg; height not given.")
+    else:
+        add(f"Weight {b.weight_kg:g} kg, height {b.height_cm:g} cm, BMI {b.bmi:.1f} "
+            f"({b.bmi_class}); ideal {b.ideal_weight_kg:.1f} kg, lean {b.lean_weight_kg:.1f} kg, "
+            f"adjusted {b.adjusted_weight_kg:.1f} kg.")
+    add("")
+    add("Basis: " + "; ".join(b.basis) + ".")
+    add("")
+    add("## Equipment")
+    add("")
+    add(f"Tubes **{t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm** (first / backup / "
+        f"smallest: {t.reason}); supraglottic **size {e.supraglottic_size:g}**; front-of-neck "
+        f"tube **{e.front_of_neck_tube_mm:.1f} mm**; first device: {e.first_laryngoscope}.")
+    add("")
+    for item in e.items:
+        where = "open" if item.open_now else "in the room"
+        add(f"- [ ] **{item.name}** ({where}): {_esc(item.detail)}. {_esc(item.why)}.")
+    add("")
+    add(f"Basis: tube sizes: {t.evidence}; supraglottic size: {e.supraglottic_basis}.")
+    add("")
+    add("## Doses (calculation aid: check and titrate)")
+    add("")
+    add("| Drug | Dose | Dosed on | Notes |")
+    add("|---|---|---|---|")
+    for dose in plan.doses:
+        notes = dose.note
+        for alt in dose.alternatives:
+            notes += (f" Alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg gives "
+                      f"{alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg.")
+        add(f"| {dose.label} | {dose_text(dose)} | {per_kg_text(dose)} | {_esc(notes.strip())} |")
+    add("")
+    add("Basis: " + " ".join(f"{dose.label}: {dose.basis}." for dose in plan.doses))
+    add("")
+    add("## If intubation fails: decided before induction")
+    add("")
+    add(f"Recommendation: {_DECISION[d.recommendation]}.")
+    add("")
+    add("| Factor | Finding | Points | Points to |")
+    add("|---|---|---:|---|")
+    for f in d.factors:
+        pts = "?" if f.points_to == "unknown" else f"{f.points:+d}"
+        add(f"| {f.name} | {_esc(f.finding)}{' (derived)' if f.derived else ''} | {pts} | "
+            f"{f.points_to} |")
+    if d.if_category:
+        add("")
+        add("By urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
+            + ".")
+    add("")
+    add("Final decision, ticked before induction: \\[ \\] wake \\[ \\] proceed")
+    add("")
+    for c in d.conditions:
+        add(f"- {c}")
+    add("")
+    add("Basis: " + "; ".join(d.basis) + ".")
+    add("")
+    add("## Sequence")
+    phase = None
+    for n, s in enumerate(plan.steps, 1):
+        if s.phase != phase:
+            add("")
+            add(f"### {s.phase.capitalize()}")
+            phase = s.phase
+        add("")
+        add(f"{n}. **{s.title}**")
+        for a in s.actions:
+            add(f"   - {_esc(a)}")
+        if s.basis:
+            add(f"   - *Basis: {s.basis}*")
+    if plan.warnings:
+        add("")
+        add("## Check")
+        add("")
+        for w in plan.warnings:
+            add(f"- {_esc(w)}")
+    add("")
+    add("## Cautions")
+    add("")
+    for c in plan.cautions:
+        add(f"- {c}")
+    add("")
+    add(f"*{g.tool} {g.version}, rules {g.rules_version}, input sha256 {plan.input_sha256}*")
+    return "\n".join(out) + "\n"

@@ -1,0 +1,279 @@
+"""The plan on a terminal, 80 columns.
+
+Two views of the same plan: the full one (clinic, notes) and the compact one
+(``airway quick``: one screen at a category-1 caesarean section). Both show
+every present factor's contribution, what was not assessed, the doses, the
+pre-made decision and the cautions.
+"""
+
+from __future__ import annotations
+
+import textwrap
+
+from .body import BODY_FORMULA_WARNING
+from .doses import SCALAR_LABEL, Dose
+from .plan import Plan
+from .scoring import FactorResult
+
+WIDTH = 80
+
+_KIND = {
+    "relative_risk": "RR",
+    "likelihood_ratio": "LR+",
+    "odds_ratio_per_unit": "OR/unit",
+    "project_ratio": "ratio*",
+}
+
+_DECISION = {
+    "wake": "WAKE",
+    "proceed": "PROCEED",
+    "balanced": "BALANCED: senior decides before induction",
+    "decide_on_the_day": "DECIDE ON THE DAY (urgency not known)",
+}
+
+
+def _wrap(text: str, indent: str = "  ", first: str | None = None) -> list[str]:
+    return textwrap.wrap(
+        text, WIDTH, initial_indent=first if first is not None else indent,
+        subsequent_indent=indent, break_on_hyphens=False,
+    ) or [indent.rstrip()]
+
+
+def _heading(title: str) -> list[str]:
+    return ["", title.upper(), "-" * len(title)]
+
+
+def weight_text(f: FactorResult) -> str:
+    """How a factor's weight reads: 'RR 7.58', 'OR/unit 1.06', 'forces level 4'."""
+    if f.role == "override":
+        return "forces level 4"
+    if f.role == "preparation" or f.weight is None:
+        return "preparation"
+    return f"{_KIND[f.kind]} {f.weight:g}"
+
+
+def dose_text(d: Dose) -> str:
+    """'95-142.5 mg (1.9-2.9 mL)' or '1520 mg (15.2 mL)'."""
+    if d.dose_mg_low == d.dose_mg_high:
+        return f"{d.dose_mg_low:g} mg ({d.volume_ml_low:g} mL)"
+    return (f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg "
+            f"({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)")
+
+
+def per_kg_text(d: Dose) -> str:
+    """'1-1.5 mg/kg x total body weight 95 kg'."""
+    per = (f"{d.mg_per_kg_low:g}" if d.mg_per_kg_low == d.mg_per_kg_high
+           else f"{d.mg_per_kg_low:g}-{d.mg_per_kg_high:g}")
+    return f"{per} mg/kg x {SCALAR_LABEL[d.scalar]} {d.scalar_weight_kg:g} kg"
+
+
+def _header(plan: Plan) -> list[str]:
+    g = plan.generated_by
+    label = plan.assessment.label
+    lines = [
+        f"AIRWAY PLAN{' - ' + label if label else ''}",
+        f"{g.tool} {g.version}, rules {g.rules_version}, input {plan.input_sha256[:12]}",
+    ]
+    for caution in plan.cautions[:2]:
+        lines += _wrap(caution, "  ", "! ")
+    return lines
+
+
+def _factor_lines(f: FactorResult, detail: bool) -> list[str]:
+    name = f"{f.label} ({f.detail})" if detail and f.detail else f.label
+    src = f"{weight_text(f)}, {f.source_short} [{f.basis.replace('_', ' ')}]"
+    return _wrap(f"{name}; {src}", " " * 9, f"  +{f.contribution:5.2f}  ")
+
+
+def _risk(plan: Plan) -> list[str]:
+    r = plan.risk
+    lo, mid, hi = r.thresholds
+    lines = _heading(f"Level {r.level} of 4: {r.label}")
+    lines.append(f"  index {r.index:.2f} (level 2 from {lo:.2f}, 3 from {mid:.2f}, "
+                 f"4 from {hi:.2f})")
+    if r.overrides:
+        lines.append("  forced to level 4 by: " + ", ".join(r.overrides))
+    present = [f for f in r.factors if f.present and f.role != "preparation"]
+    if not present:
+        lines.append("  no risk factor found among those assessed")
+    for f in present:
+        lines += _factor_lines(f, detail=True)
+    if any(f.kind == "project_ratio" and f.present for f in r.factors):
+        lines += _wrap("ratio* = no published figure: a project rule, shown as such.")
+    lines += _wrap(r.note)
+    return lines
+
+
+def _not_assessed(plan: Plan) -> list[str]:
+    if not plan.not_assessed:
+        return []
+    return _wrap("Not assessed: " + ", ".join(plan.not_assessed) + ".", "  ", "  ")
+
+
+def _preparation(plan: Plan) -> list[str]:
+    if not plan.preparation:
+        return []
+    lines = _heading("Prepare because of")
+    for p in plan.preparation:
+        lines += _wrap(p, "    ", "  - ")
+    return lines
+
+
+def _body(plan: Plan) -> list[str]:
+    b = plan.body
+    lines = _heading("Body size")
+    if b.bmi is None:
+        lines.append(f"  weight {b.weight_kg:g} kg; height not given")
+        return lines
+    lines.append(f"  weight {b.weight_kg:g} kg, height {b.height_cm:g} cm, BMI {b.bmi:.1f} "
+                 f"({b.bmi_class})")
+    lines.append(f"  ideal {b.ideal_weight_kg:.1f} kg, lean {b.lean_weight_kg:.1f} kg, "
+                 f"adjusted {b.adjusted_weight_kg:.1f} kg")
+    if b.booking_bmi is not None:
+        lines.append(f"  booking BMI {b.booking_bmi:.1f}")
+    lines += _wrap("Basis: " + "; ".join(b.basis))
+    return lines
+
+
+def _equipment(plan: Plan) -> list[str]:
+    e = plan.equipment
+    t = e.tracheal_tube_mm
+    lines = _heading("Equipment")
+    lines += _wrap(f"tubes {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm (first / "
+                   f"backup / smallest: {t.reason})")
+    lines += _wrap(f"supraglottic size {e.supraglottic_size:g}; front-of-neck tube "
+                   f"{e.front_of_neck_tube_mm:.1f} mm; first: {e.first_laryngoscope}")
+    for item in e.items:
+        box = "[ ]"
+        lines += _wrap(f"{item.name}: {item.detail} ({item.why})"
+                       f"{'' if item.open_now else ' - in the room'}", "      ", f"  {box} ")
+    lines += _wrap("Tube sizes: " + t.evidence)
+    lines += _wrap("Supraglottic size: " + e.supraglottic_basis)
+    return lines
+
+
+def _doses(plan: Plan) -> list[str]:
+    lines = _heading("Doses (calculation aid: check and titrate)")
+    for d in plan.doses:
+        lines.append(f"  {d.label:<32} {dose_text(d)}")
+        lines += _wrap(per_kg_text(d), "      ", "      ")
+        for alt in d.alternatives:
+            lines += _wrap(f"alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg "
+                           f"gives {alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg", "      ")
+        if d.note:
+            lines += _wrap(d.note, "      ")
+        lines += _wrap("Basis: " + d.basis, "      ")
+    return lines
+
+
+def _decision(plan: Plan) -> list[str]:
+    d = plan.decision
+    lines = _heading(f"If intubation fails: {_DECISION[d.recommendation]}")
+    for f in d.factors:
+        sign = f"{f.points:+d}" if f.points_to != "unknown" else " ?"
+        derived = " (derived)" if f.derived else ""
+        lines += _wrap(f"{sign:>3} {f.points_to:<8} {f.name}: {f.finding}{derived}",
+                       " " * 15, "  ")
+    if d.if_category:
+        lines += _wrap("by urgency category: " + ", ".join(
+            f"{k}: {v}" for k, v in d.if_category.items()))
+    lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
+    for c in d.conditions:
+        lines += _wrap(c, "    ", "  - ")
+    lines += _wrap("Basis: " + "; ".join(d.basis))
+    return lines
+
+
+def _steps(plan: Plan) -> list[str]:
+    lines = _heading("Sequence")
+    phase = None
+    for n, s in enumerate(plan.steps, 1):
+        if s.phase != phase:
+            lines.append(f"  {s.phase.upper()}")
+            phase = s.phase
+        lines.append(f"  {n:>2}. {s.title}")
+        for a in s.actions:
+            lines += _wrap(a, "        ", "      - ")
+        if s.basis:
+            lines += _wrap("Basis: " + s.basis, "        ")
+    return lines
+
+
+def _warnings(plan: Plan) -> list[str]:
+    if not plan.warnings:
+        return []
+    lines = _heading("Check")
+    for w in plan.warnings:
+        lines += _wrap(w, "    ", "  - ")
+    return lines
+
+
+def _cautions(plan: Plan) -> list[str]:
+    lines = _heading("Cautions")
+    for c in plan.cautions:
+        lines += _wrap(c, "    ", "  - ")
+    return lines
+
+
+# Shown elsewhere on the one screen (doses) or not needed in the moment.
+_COMPACT_SKIP = ("antacid", "drugs", "after")
+
+
+def _compact(plan: Plan) -> list[str]:
+    """One screen: everything needed at a category-1 section, nothing more."""
+    r, e, d = plan.risk, plan.equipment, plan.decision
+    t = e.tracheal_tube_mm
+    lines = [f"LEVEL {r.level} of 4: {r.label}",
+             f"  index {r.index:.2f} (ranks risk; not a probability)"]
+    if r.overrides:
+        lines.append("  forced to level 4 by: " + ", ".join(r.overrides))
+    present = [f for f in r.factors if f.present and f.role != "preparation"]
+    for f in present:
+        lines += _factor_lines(f, detail=False)
+    if not present:
+        lines.append("  no risk factor found among those assessed")
+    prep = [f.label for f in r.factors if f.present and f.role == "preparation"]
+    if prep:
+        lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
+    lines += _not_assessed(plan)
+    lines += ["", f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   "
+                  f"SUPRAGLOTTIC size {e.supraglottic_size:g}   FRONT-OF-NECK "
+                  f"{e.front_of_neck_tube_mm:.1f} mm"]
+    lines += _wrap("first device: " + e.first_laryngoscope)
+    lines += ["", "DOSES (calculation aid: check and titrate)"]
+    for dose in plan.doses:
+        name = dose.label.split(" (")[0]
+        scale = f"{SCALAR_LABEL[dose.scalar].split()[0]} {dose.scalar_weight_kg:g} kg"
+        lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
+    lines += ["", f"IF INTUBATION FAILS: {_DECISION[d.recommendation]}"]
+    for direction in ("proceed", "wake", "neither", "unknown"):
+        names = [f"{f.name.split(' (')[0].lower()} {f.points:+d}" if direction != "unknown"
+                 else f.name.split(" (")[0].lower()
+                 for f in d.factors if f.points_to == direction]
+        if names:
+            lines += _wrap(f"{direction}: " + ", ".join(names), "    ", "  ")
+    if d.if_category:
+        lines += _wrap("by urgency category: " + ", ".join(
+            f"{k}: {v}" for k, v in d.if_category.items()))
+    lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
+    lines += ["", "SEQUENCE"]
+    shown = [s for s in plan.steps if s.id not in _COMPACT_SKIP]
+    for n, step in enumerate(shown, 1):
+        lines += _wrap(step.summary, "      ", f"  {n:>2}. ")
+    for w in plan.warnings:
+        if w != BODY_FORMULA_WARNING:
+            lines += _wrap(w, "  ", "! ")
+    lines += _wrap(plan.cautions[2], "  ", "! ")
+    return lines
+
+
+def render_text(plan: Plan, compact: bool = False) -> str:
+    """The plan as plain text at 80 columns; ``compact`` for one screen."""
+    lines = _header(plan)
+    if compact:
+        lines += _compact(plan)
+    else:
+        lines += (_risk(plan) + _not_assessed(plan) + _preparation(plan) + _body(plan)
+                  + _equipment(plan) + _doses(plan) + _decision(plan) + _steps(plan)
+                  + _warnings(plan) + _cautions(plan))
+    return "\n".join(line.rstrip() for line in lines) + "\n"

@@ -1,0 +1,153 @@
+"""Combine the risk factors into one index and a level from 1 to 4.
+
+The index is the sum of the natural logs of each present factor's ratio (per
+unit for per-unit factors). Adding log ratios assumes the factors act
+independently and multiplicatively; they do not (short neck and obesity, for
+one, were collinear in Rocke 1992), so the index *ranks* risk and is never
+shown as a probability.
+"""
+
+from __future__ import annotations
+
+import math
+
+from pydantic import BaseModel, ConfigDict
+
+from .assessment import Assessment
+from .body import BodySize
+from .factors import CATALOGUE, Factor
+from .sources import SOURCES, Evidence
+
+# Level boundaries on the index (project rule): a combined ratio of 3, 10 and
+# 30. Mallampati 3 alone (ln 7.58 = 2.03) lands in level 2; Mallampati 3 or 4
+# with one of short neck, receding mandible or protruding incisors lands in
+# level 4, in keeping with Rocke 1992's quoted combined probability of over 90%.
+LEVEL_THRESHOLDS: tuple[float, float, float] = (math.log(3), math.log(10), math.log(30))
+LEVEL_EVIDENCE = Evidence("project", "project_rule", "combined ratio 3 / 10 / 30")
+
+LEVEL_LABELS: dict[int, str] = {
+    1: "Routine precautions",
+    2: "Heightened precautions",
+    3: "Difficulty anticipated",
+    4: "Difficulty expected: senior-led plan",
+}
+
+INDEPENDENCE_NOTE = (
+    "The index adds log ratios as if the factors were independent; they are not, "
+    "so it ranks risk and is not a probability."
+)
+
+
+class FactorResult(BaseModel):
+    """One factor as found in this assessment."""
+
+    model_config = ConfigDict(frozen=True)
+
+    id: str
+    label: str
+    role: str
+    kind: str
+    present: bool | None  # None: not assessed
+    weight: float | None
+    contribution: float  # added to the index
+    detail: str
+    source: str
+    source_short: str
+    basis: str
+    evidence: str
+    prepares: str
+
+
+class Risk(BaseModel):
+    """The combined airway-difficulty estimate."""
+
+    model_config = ConfigDict(frozen=True)
+
+    level: int
+    label: str
+    index: float
+    index_level: int  # what the index alone gives, before overrides
+    overrides: tuple[str, ...]
+    factors: tuple[FactorResult, ...]
+    not_assessed: tuple[str, ...]
+    note: str
+    thresholds: tuple[float, float, float]
+
+
+def level_for_index(index: float) -> int:
+    """Level 1-4 for a combined index."""
+    return 1 + sum(index >= t for t in LEVEL_THRESHOLDS)
+
+
+def _evaluate(factor: Factor, assessment: Assessment, body: BodySize) -> FactorResult:
+    reading = factor.read(assessment, body)
+    contribution = 0.0
+    if reading.present and factor.role == "difficulty":
+        contribution = factor.log_weight * reading.units
+    return FactorResult(
+        id=factor.id,
+        label=factor.label,
+        role=factor.role,
+        kind=factor.kind,
+        present=reading.present,
+        weight=factor.weight,
+        contribution=round(contribution, 4),
+        detail=reading.detail if reading.present else "",
+        source=factor.evidence.source,
+        source_short=SOURCES[factor.evidence.source].short,
+        basis=factor.evidence.basis,
+        evidence=factor.evidence.describe(),
+        prepares=factor.prepares,
+    )
+
+
+def score(assessment: Assessment, body: BodySize) -> Risk:
+    """Evaluate every catalogued factor and combine them into a :class:`Risk`."""
+    results = tuple(_evaluate(f, assessment, body) for f in CATALOGUE)
+    index = round(sum(r.contribution for r in results), 4)
+    overrides = tuple(r.label for r in results if r.role == "override" and r.present)
+    index_level = level_for_index(index)
+    level = 4 if overrides else index_level
+    not_assessed = tuple(
+        dict.fromkeys(
+            _finding_name(r.id) for r in results if r.present is None
+        )
+    )
+    return Risk(
+        level=level,
+        label=LEVEL_LABELS[level],
+        index=index,
+        index_level=index_level,
+        overrides=overrides,
+        factors=results,
+        not_assessed=not_assessed,
+        note=INDEPENDENCE_NOTE,
+        thresholds=tuple(round(t, 4) for t in LEVEL_THRESHOLDS),  # type: ignore[arg-type]
+    )
+
+
+# Several factors read one finding (Mallampati 2/3/4): list the finding once.
+_FINDING = {
+    "mallampati_2": "Mallampati class",
+    "mallampati_3": "Mallampati class",
+    "mallampati_4": "Mallampati class",
+    "bmi": "BMI (height)",
+    "age": "age",
+    "preeclampsia_without_severe": "pre-eclampsia status",
+    "preeclampsia_with_severe": "pre-eclampsia status",
+    "upper_lip_bite_3": "upper lip bite test",
+    "thyromental_short": "thyromental distance",
+    "sternomental_short": "sternomental distance",
+    "mouth_opening_small": "inter-incisor gap",
+    "neck_movement_reduced": "neck movement",
+    "jaw_protrusion_limited": "jaw protrusion",
+    "neck_circumference_large": "neck circumference",
+    "low_platelets": "platelet count",
+    "in_labour": "labour status",
+    "previous_failed_intubation": "intubation history",
+    "previous_difficult_intubation": "intubation history",
+}
+
+
+def _finding_name(factor_id: str) -> str:
+    return _FINDING.get(factor_id, factor_id.replace("_", " "))
