@@ -9,10 +9,10 @@ thin layer over these.
 
 __version__ = "0.1.0"
 
-from .assessment import Assessment  # noqa: E402
-from .errors import AirwayError, InputError  # noqa: E402
-from .loading import assessment_from_mapping, parse_assessment, read_assessment  # noqa: E402
-from .plan import Plan, build_plan  # noqa: E402
+from .assessment import Assessment
+from .errors import AirwayError, InputError
+from .loading import assessment_from_mapping, parse_assessment, read_assessment
+from .plan import Plan, build_plan
 
 __all__ = [
     "AirwayError",

@@ -33,7 +33,10 @@ class _Model(BaseModel):
 
 def _num(lo: float, hi: float, unit: str, what: str) -> object:
     return Field(
-        default=None, ge=lo, le=hi, description=f"{what}, in {unit}; {lo}-{hi}",
+        default=None,
+        ge=lo,
+        le=hi,
+        description=f"{what}, in {unit}; {lo}-{hi}",
         json_schema_extra={"unit": unit} if unit not in ("class", "category") else None,
     )
 
@@ -43,8 +46,12 @@ class Patient(_Model):
 
     weight_kg: Annotated[
         float,
-        Field(ge=30, le=300, description="Current body weight, in kg; 30-300",
-              json_schema_extra={"unit": "kg"}),
+        Field(
+            ge=30,
+            le=300,
+            description="Current body weight, in kg; 30-300",
+            json_schema_extra={"unit": "kg"},
+        ),
     ]
     height_cm: Annotated[float | None, _num(120, 210, "cm", "Height in centimetres")] = None
     age_years: Annotated[int | None, _num(12, 65, "years", "Age in completed years")] = None

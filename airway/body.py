@@ -141,7 +141,9 @@ def body_size(
         height_cm=height_cm,
         bmi=round(value, 2),
         bmi_class=who_bmi_class(round(value, 2)),
-        booking_bmi=None if booking_weight_kg is None else round(bmi(booking_weight_kg, height_cm), 2),
+        booking_bmi=(
+            None if booking_weight_kg is None else round(bmi(booking_weight_kg, height_cm), 2)
+        ),
         ideal_weight_kg=round(ideal, 2),
         lean_weight_kg=round(lean, 2),
         adjusted_weight_kg=round(adjusted_weight(weight_kg, ideal), 2),

@@ -10,15 +10,19 @@ import json
 import sys
 from collections.abc import Iterator
 from contextlib import contextmanager
-from enum import Enum
+from enum import StrEnum
 from importlib import resources
 from pathlib import Path
-from typing import Annotated
+from typing import TYPE_CHECKING, Annotated
 
 import typer
 
 from . import __version__
 from .errors import AirwayError
+
+if TYPE_CHECKING:
+    from .assessment import Assessment
+    from .plan import Plan
 
 app = typer.Typer(
     add_completion=False,
@@ -29,7 +33,7 @@ app = typer.Typer(
 )
 
 
-class Format(str, Enum):
+class Format(StrEnum):
     text = "text"
     markdown = "markdown"
     json = "json"
@@ -42,7 +46,7 @@ OutputOpt = Annotated[
 ForceOpt = Annotated[bool, typer.Option("--force", help="Replace an existing output file.")]
 CatalogueOpt = Annotated[
     Path | None,
-    typer.Option("--catalogue", help="The unit's equipment catalogue (TOML); shipped one if absent."),
+    typer.Option("--catalogue", help="The unit's equipment catalogue (TOML); default: shipped."),
 ]
 
 
@@ -59,7 +63,7 @@ def _errors() -> Iterator[None]:
         raise typer.Exit(1) from None
 
 
-def _render(plan, fmt: Format, compact: bool = False) -> str:  # type: ignore[no-untyped-def]
+def _render(plan: Plan, fmt: Format, compact: bool = False) -> str:
     if fmt is Format.json:
         from .render_json import render_json
 
@@ -98,7 +102,7 @@ def main_callback(
     """Obstetric airway plans from one bedside assessment."""
 
 
-def _plan_for(assessment, catalogue: Path | None):  # type: ignore[no-untyped-def]
+def _plan_for(assessment: Assessment, catalogue: Path | None) -> Plan:
     from .equipment import load_catalogue
     from .plan import build_plan
 
@@ -176,14 +180,26 @@ def quick(
 
     with _errors():
         assessment = quick_assessment(
-            weight_kg=weight_kg, height_cm=height_cm, age_years=age,
-            gestation_weeks=gestation_weeks, in_labour=in_labour, mallampati=mallampati,
-            upper_lip_bite=upper_lip_bite, thyromental_cm=thyromental_cm,
-            mouth_opening_cm=mouth_opening_cm, neck_movement=neck_movement,
-            large_breasts=large_breasts, short_neck=short_neck,
-            receding_mandible=receding_mandible, snoring=snoring, intubation=intubation,
-            status=preeclampsia, signs=sign, platelets_10e9_per_l=platelets,
-            urgency_category=category, anaesthetist=anaesthetist,
+            weight_kg=weight_kg,
+            height_cm=height_cm,
+            age_years=age,
+            gestation_weeks=gestation_weeks,
+            in_labour=in_labour,
+            mallampati=mallampati,
+            upper_lip_bite=upper_lip_bite,
+            thyromental_cm=thyromental_cm,
+            mouth_opening_cm=mouth_opening_cm,
+            neck_movement=neck_movement,
+            large_breasts=large_breasts,
+            short_neck=short_neck,
+            receding_mandible=receding_mandible,
+            snoring=snoring,
+            intubation=intubation,
+            status=preeclampsia,
+            signs=sign,
+            platelets_10e9_per_l=platelets,
+            urgency_category=category,
+            anaesthetist=anaesthetist,
         )
         _emit(_render(_plan_for(assessment, catalogue), fmt, compact=not full), output, force)
 

@@ -64,7 +64,10 @@ def _direction(points: int | None) -> str:
 
 def _factor(name: str, finding: str, points: int | None, derived: bool = False) -> DecisionFactor:
     return DecisionFactor(
-        name=name, finding=finding, points=points or 0, points_to=_direction(points),
+        name=name,
+        finding=finding,
+        points=points or 0,
+        points_to=_direction(points),
         derived=derived,
     )
 
@@ -89,13 +92,17 @@ def _aspiration(a: Assessment) -> DecisionFactor:
 def _alternative(a: Assessment) -> DecisionFactor:
     stated = a.context.regional_alternative
     if stated is not None:
-        return _factor("Alternative technique (regional or awake)", stated,
-                       ALTERNATIVE_POINTS[stated])
+        return _factor(
+            "Alternative technique (regional or awake)", stated, ALTERNATIVE_POINTS[stated]
+        )
     platelets = a.preeclampsia.platelets_10e9_per_l
     if platelets is not None and platelets < PLATELETS_LOW_10E9:
-        return _factor("Alternative technique (regional or awake)",
-                       f"difficult (platelets {platelets:g} x10^9/L)",
-                       ALTERNATIVE_POINTS["difficult"], derived=True)
+        return _factor(
+            "Alternative technique (regional or awake)",
+            f"difficult (platelets {platelets:g} x10^9/L)",
+            ALTERNATIVE_POINTS["difficult"],
+            derived=True,
+        )
     return _factor("Alternative technique (regional or awake)", "not stated", None)
 
 
@@ -118,25 +125,33 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
     """Pre-induction recommendation, with the direction of every factor."""
     c = assessment.context
     others = [
-        _factor("Anaesthetist", c.anaesthetist or "not stated",
-                None if c.anaesthetist is None else ANAESTHETIST_POINTS[c.anaesthetist]),
+        _factor(
+            "Anaesthetist",
+            c.anaesthetist or "not stated",
+            None if c.anaesthetist is None else ANAESTHETIST_POINTS[c.anaesthetist],
+        ),
         _obesity(body),
-        _factor("Surgical complexity", c.surgical_complexity or "not stated",
-                None if c.surgical_complexity is None else GRADE_POINTS[c.surgical_complexity]),
+        _factor(
+            "Surgical complexity",
+            c.surgical_complexity or "not stated",
+            None if c.surgical_complexity is None else GRADE_POINTS[c.surgical_complexity],
+        ),
         _aspiration(assessment),
         _alternative(assessment),
         *_anticipated_hazards(assessment),
     ]
     rest = sum(f.points for f in others)
     if c.urgency_category is None:
-        urgency = _factor("Maternal or fetal condition (urgency)",
-                          "not known yet (clinic plan)", None)
+        urgency = _factor(
+            "Maternal or fetal condition (urgency)", "not known yet (clinic plan)", None
+        )
         recommendation = "decide_on_the_day"
         if_category = {str(k): _recommend(rest + p) for k, p in URGENCY_POINTS.items()}
     else:
         cat = c.urgency_category
-        urgency = _factor("Maternal or fetal condition (urgency)", URGENCY_TEXT[cat],
-                          URGENCY_POINTS[cat])
+        urgency = _factor(
+            "Maternal or fetal condition (urgency)", URGENCY_TEXT[cat], URGENCY_POINTS[cat]
+        )
         recommendation = _recommend(rest + URGENCY_POINTS[cat])
         if_category = {}
     factors = (urgency, *others)
@@ -153,6 +168,9 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
             "support waking.",
             "If oxygenation fails: can't intubate, can't oxygenate: front-of-neck access.",
         ),
-        basis=(FACTOR_LIST_EVIDENCE.describe(), GRADING_EVIDENCE.describe(),
-               POINTS_EVIDENCE.describe()),
+        basis=(
+            FACTOR_LIST_EVIDENCE.describe(),
+            GRADING_EVIDENCE.describe(),
+            POINTS_EVIDENCE.describe(),
+        ),
     )

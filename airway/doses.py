@@ -48,7 +48,12 @@ class Drug:
 
 DRUGS: tuple[Drug, ...] = (
     Drug(
-        "propofol", "Propofol", "induction", (2.0, 2.5), "total", "lean",
+        "propofol",
+        "Propofol",
+        "induction",
+        (2.0, 2.5),
+        "total",
+        "lean",
         (("adjusted", "nightingale2015"),),
         10.0,
         Evidence("valtonen1989", "published", "obstetric induction trials used 2-2.5 mg/kg"),
@@ -58,16 +63,28 @@ DRUGS: tuple[Drug, ...] = (
         "(Subramani 2017); 2 mg/kg adjusted weight has also been used. Titrate to effect.",
     ),
     Drug(
-        "thiopental", "Thiopental", "induction", (4.0, 5.0), "total", "lean",
-        (), 25.0,
+        "thiopental",
+        "Thiopental",
+        "induction",
+        (4.0, 5.0),
+        "total",
+        "lean",
+        (),
+        25.0,
         Evidence("common_practice", "common_practice", "obstetric doses of 4-5 mg/kg"),
         Evidence("nightingale2015", "published", "lean weight in obesity"),
         Evidence("common_practice", "common_practice", "2.5% solution"),
         note="Higher awareness risk than propofol (AAGBI/SOBA 2015).",
     ),
     Drug(
-        "suxamethonium", "Suxamethonium", "neuromuscular block", (1.0, 1.5), "total", "total",
-        (), 50.0,
+        "suxamethonium",
+        "Suxamethonium",
+        "neuromuscular block",
+        (1.0, 1.5),
+        "total",
+        "total",
+        (),
+        50.0,
         Evidence("elorbany2010", "published", "1-1.5 mg/kg for rapid sequence induction"),
         Evidence("lemmens2006", "published", "total weight, also in obesity"),
         Evidence("common_practice", "common_practice", "50 mg/mL ampoules; check local stock"),
@@ -75,20 +92,38 @@ DRUGS: tuple[Drug, ...] = (
         "do not plan on waiting for it to wear off.",
     ),
     Drug(
-        "rocuronium", "Rocuronium", "neuromuscular block", (1.0, 1.2), "total", "lean",
-        (("ideal", "leykin2004"),), 10.0,
+        "rocuronium",
+        "Rocuronium",
+        "neuromuscular block",
+        (1.0, 1.2),
+        "total",
+        "lean",
+        (("ideal", "leykin2004"),),
+        10.0,
         Evidence("williamson2011", "published", "1.2 mg/kg in obstetric rapid sequence induction"),
-        Evidence("nightingale2015", "published",
-                 "lean weight in obesity, never total weight (prolongs the block)"),
+        Evidence(
+            "nightingale2015",
+            "published",
+            "lean weight in obesity, never total weight (prolongs the block)",
+        ),
         Evidence("common_practice", "common_practice", "10 mg/mL"),
         note="Sources disagree on the scalar in obesity: lean weight (AAGBI/SOBA 2015) "
         "or ideal weight (Leykin 2004).",
     ),
     Drug(
-        "sugammadex", "Sugammadex (immediate reversal)", "reversal", (16.0, 16.0), "total",
-        "total", (), 100.0,
-        Evidence("sugammadex_label", "published",
-                 "16 mg/kg for immediate reversal of rocuronium 1.2 mg/kg"),
+        "sugammadex",
+        "Sugammadex (immediate reversal)",
+        "reversal",
+        (16.0, 16.0),
+        "total",
+        "total",
+        (),
+        100.0,
+        Evidence(
+            "sugammadex_label",
+            "published",
+            "16 mg/kg for immediate reversal of rocuronium 1.2 mg/kg",
+        ),
         Evidence("sugammadex_label", "from_memory", "actual body weight"),
         Evidence("sugammadex_label", "published", "100 mg/mL"),
         note="Draw up and keep ready whenever rocuronium is used. Reversal does not "
@@ -158,18 +193,25 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
         ).strip()
     if kg is None:
         wanted, kg = "total", body.weight_kg
+    # Dose on the weight as shown, so mg/kg x shown weight checks exactly.
+    kg = round(kg, 2)
     low, high = drug.mg_per_kg
     alternatives = []
     if obese:
         for scalar, source in drug.alternatives_obese:
             alt_kg = _weight(body, scalar)
             if alt_kg is not None:
-                alternatives.append(Alternative(
-                    scalar=scalar, weight_kg=alt_kg, dose_mg_low=_mg(low, alt_kg),
-                    dose_mg_high=_mg(high, alt_kg), source=source))
-    basis = "; ".join(
-        e.describe() for e in (drug.dose_evidence, drug.scalar_evidence, drug.concentration_evidence)
-    )
+                alternatives.append(
+                    Alternative(
+                        scalar=scalar,
+                        weight_kg=alt_kg,
+                        dose_mg_low=_mg(low, alt_kg),
+                        dose_mg_high=_mg(high, alt_kg),
+                        source=source,
+                    )
+                )
+    evidence = (drug.dose_evidence, drug.scalar_evidence, drug.concentration_evidence)
+    basis = "; ".join(e.describe() for e in evidence)
     return Dose(
         drug=drug.name,
         label=drug.label,
@@ -177,7 +219,7 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
         mg_per_kg_low=low,
         mg_per_kg_high=high,
         scalar=wanted,
-        scalar_weight_kg=round(kg, 2),
+        scalar_weight_kg=kg,
         dose_mg_low=_mg(low, kg),
         dose_mg_high=_mg(high, kg),
         mg_per_ml=drug.mg_per_ml,

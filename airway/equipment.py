@@ -173,7 +173,10 @@ def choose_tubes(assessment: Assessment, catalogue: Catalogue) -> TubeSizes:
     backup = min(first, _snap(desired[1], stocked))
     smallest = min(backup, _snap(desired[2], stocked))
     return TubeSizes(
-        first=first, backup=backup, smallest=smallest, reason=reason,
+        first=first,
+        backup=backup,
+        smallest=smallest,
+        reason=reason,
         evidence=TUBE_EVIDENCE.describe(),
     )
 
@@ -190,34 +193,58 @@ def choose_equipment(
     breasts = bool(assessment.airway.large_breasts)
     video_first = level >= VIDEO_FIRST_LEVEL or high_bmi
     items = [
-        Item(name="Tracheal tubes (cuffed)",
-             detail=f"{tubes.first:.1f} mm first, {tubes.backup:.1f} mm backup, "
-                    f"{tubes.smallest:.1f} mm smallest",
-             why=tubes.reason, open_now=True),
-        Item(name="Videolaryngoscope", detail=lar.videolaryngoscope,
-             why="first device: level %d%s" % (level, ", BMI 40 or more" if high_bmi else "")
-             if video_first else "in the room, on and checked", open_now=video_first),
+        Item(
+            name="Tracheal tubes (cuffed)",
+            detail=f"{tubes.first:.1f} mm first, {tubes.backup:.1f} mm backup, "
+            f"{tubes.smallest:.1f} mm smallest",
+            why=tubes.reason,
+            open_now=True,
+        ),
+        Item(
+            name="Videolaryngoscope",
+            detail=lar.videolaryngoscope,
+            why=f"first device: level {level}{', BMI 40 or more' if high_bmi else ''}"
+            if video_first
+            else "in the room, on and checked",
+            open_now=video_first,
+        ),
     ]
     if breasts or high_bmi:
         why = "large breasts" if breasts else "BMI 40 or more"
-        items.append(Item(name="Short-handled laryngoscope", detail=lar.short_handle,
-                          why=f"{why}: a standard handle may foul the chest "
-                              "(Datta & Briwa 1981)", open_now=True))
+        items.append(
+            Item(
+                name="Short-handled laryngoscope",
+                detail=lar.short_handle,
+                why=f"{why}: a standard handle may foul the chest (Datta & Briwa 1981)",
+                open_now=True,
+            )
+        )
     items += [
-        Item(name="Direct laryngoscope", detail=lar.direct, why="standard", open_now=not video_first),
+        Item(
+            name="Direct laryngoscope", detail=lar.direct, why="standard", open_now=not video_first
+        ),
         Item(name="Bougie", detail=adj.bougie, why="first-attempt aid", open_now=True),
-        Item(name="Supraglottic airway", detail=f"size {sga:g}, {catalogue.supraglottic.device}",
-             why=f"rescue after failed intubation; size by weight {body.weight_kg:g} kg "
-                 "(makers' bands, not evidence-based)", open_now=True),
-        Item(name="Face mask and oral airways",
-             detail=f"{adj.face_masks}; {adj.oral_airways}",
-             why="pre-oxygenation and two-person mask rescue", open_now=True),
-        Item(name="Front-of-neck kit",
-             detail=f"scalpel with a wide (no. 10) blade, bougie, "
-                    f"{catalogue.front_of_neck_tube_mm:.1f} mm cuffed tube",
-             why="can't intubate, can't oxygenate" +
-                 ("; level 4: opened and within reach" if level == 4 else ""),
-             open_now=level == 4),
+        Item(
+            name="Supraglottic airway",
+            detail=f"size {sga:g}, {catalogue.supraglottic.device}",
+            why=f"rescue after failed intubation; size by weight {body.weight_kg:g} kg "
+            "(makers' bands, not evidence-based)",
+            open_now=True,
+        ),
+        Item(
+            name="Face mask and oral airways",
+            detail=f"{adj.face_masks}; {adj.oral_airways}",
+            why="pre-oxygenation and two-person mask rescue",
+            open_now=True,
+        ),
+        Item(
+            name="Front-of-neck kit",
+            detail=f"scalpel with a wide (no. 10) blade, bougie, "
+            f"{catalogue.front_of_neck_tube_mm:.1f} mm cuffed tube",
+            why="can't intubate, can't oxygenate"
+            + ("; level 4: opened and within reach" if level == 4 else ""),
+            open_now=level == 4,
+        ),
     ]
     return Equipment(
         tracheal_tube_mm=tubes,
@@ -225,7 +252,8 @@ def choose_equipment(
         supraglottic_device=catalogue.supraglottic.device,
         supraglottic_basis=SGA_EVIDENCE.describe(),
         front_of_neck_tube_mm=catalogue.front_of_neck_tube_mm,
-        first_laryngoscope="videolaryngoscope" if video_first else "direct laryngoscope "
-        "(videolaryngoscope on and ready)",
+        first_laryngoscope="videolaryngoscope"
+        if video_first
+        else "direct laryngoscope (videolaryngoscope on and ready)",
         items=tuple(items),
     )

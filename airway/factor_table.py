@@ -33,8 +33,15 @@ def render_factor_table(rows: list[dict[str, object]]) -> str:
     """The catalogue as text at 80 columns."""
     lines = ["RISK FACTORS (weight: ratio; ln: what one unit adds to the index)", ""]
     for r in rows:
-        weight = "forces level 4" if r["role"] == "override" else (
-            "preparation only" if r["weight"] is None else f"{r['weight']:g} (ln {r['log_weight']:.2f})")
+        weight = (
+            "forces level 4"
+            if r["role"] == "override"
+            else (
+                "preparation only"
+                if r["weight"] is None
+                else f"{r['weight']:g} (ln {r['log_weight']:.2f})"
+            )
+        )
         lines.append(f"{r['id']:<30} {weight}")
         src = f"{r['label']}. {SOURCES[str(r['source'])].short} [{BASIS_LABEL[str(r['basis'])]}]"
         if r["note"]:

@@ -88,7 +88,8 @@ def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessme
         fmt: ``"toml"`` or ``"json"``; guessed from the first character when None.
     """
     if not text.strip():
-        raise InputError(source, [Problem("(file)", "is empty; expected a TOML or JSON assessment")])
+        problem = Problem("(file)", "is empty; expected a TOML or JSON assessment")
+        raise InputError(source, [problem])
     if fmt is None:
         fmt = "json" if text.lstrip().startswith("{") else "toml"
     try:

@@ -25,8 +25,9 @@ RULES_VERSION = "2026.12.1"
 
 MAX_INTUBATION_ATTEMPTS = 2  # OAA/DAS 2015 (Mushambi), published
 INTUBATION_ATTEMPTS_EVIDENCE = Evidence(
-    "mushambi2015", "published", "at most two attempts; a third only by a more "
-    "experienced anaesthetist (from memory)"
+    "mushambi2015",
+    "published",
+    "at most two attempts; a third only by a more experienced anaesthetist (from memory)",
 )
 MAX_SGA_ATTEMPTS = 2  # OAA/DAS 2015 detail, from memory
 SGA_ATTEMPTS_EVIDENCE = Evidence("mushambi2015", "from_memory", "at most two insertion attempts")
@@ -37,13 +38,16 @@ PREOX_TARGET_FEO2 = 0.9
 PREOX_EVIDENCE = Evidence(
     "tanoubi2009", "published", "3 min tidal breathing or 8 vital-capacity breaths in 60 s"
 )
-POSITION_EVIDENCE = Evidence("common_practice", "common_practice",
-                             "ramp and about 15 degrees of left uterine displacement")
+POSITION_EVIDENCE = Evidence(
+    "common_practice", "common_practice", "ramp and about 15 degrees of left uterine displacement"
+)
 ANTACID_EVIDENCE = Evidence("common_practice", "common_practice")
-CICO_EVIDENCE = Evidence("frerk2015", "from_memory",
-                         "scalpel-bougie-tube; 8-10 cm vertical incision if impalpable")
-PERIMORTEM_EVIDENCE = Evidence("mushambi2015", "published",
-                               "timely perimortem caesarean section if oxygenation fails")
+CICO_EVIDENCE = Evidence(
+    "frerk2015", "from_memory", "scalpel-bougie-tube; 8-10 cm vertical incision if impalpable"
+)
+PERIMORTEM_EVIDENCE = Evidence(
+    "mushambi2015", "published", "timely perimortem caesarean section if oxygenation fails"
+)
 
 # Values that are possible but improbable: a warning, never a refusal.
 IMPROBABLE_BMI = 70.0
@@ -55,8 +59,7 @@ CAUTION_AID = (
     "guidelines or licensed practice."
 )
 CAUTION_REASSESS = (
-    "Reassess the airway immediately before induction: findings change, "
-    "especially in labour."
+    "Reassess the airway immediately before induction: findings change, especially in labour."
 )
 CAUTION_DOSES = "Doses are a calculation aid: check every dose and titrate to effect."
 CAUTION_WEAK_TESTS = (
@@ -111,7 +114,9 @@ class Plan(BaseModel):
 def assessment_digest(assessment: Assessment) -> str:
     """SHA-256 of the assessment's canonical JSON: the same findings, the same digest."""
     canonical = json.dumps(
-        assessment.model_dump(mode="json"), sort_keys=True, separators=(",", ":"),
+        assessment.model_dump(mode="json"),
+        sort_keys=True,
+        separators=(",", ":"),
         ensure_ascii=False,
     )
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
@@ -131,107 +136,183 @@ _DECISION_TEXT = {
 }
 
 
-def _steps(a: Assessment, risk: Risk, eq: Equipment, doses: tuple[Dose, ...],
-           decision: Decision) -> tuple[Step, ...]:
+def _steps(
+    a: Assessment, risk: Risk, eq: Equipment, doses: tuple[Dose, ...], decision: Decision
+) -> tuple[Step, ...]:
     by = {d.drug: d for d in doses}
     tubes = eq.tracheal_tube_mm
     sux, roc, sgx = by["suxamethonium"], by["rocuronium"], by["sugammadex"]
     prop, thio = by["propofol"], by["thiopental"]
     pre = _DECISION_TEXT[decision.recommendation]
     steps = [
-        Step(id="brief", phase="before induction", title="Team brief, aloud",
-             summary=f"brief aloud: level {risk.level}, pre-made decision, roles",
-             actions=(f"Airway level {risk.level} of 4: {risk.label}.",
-                      f"If intubation fails, the pre-made decision is: {pre}.",
-                      "Agree who calls for help, who gives cricoid force, who opens the "
-                      "front-of-neck kit.")),
-        Step(id="position", phase="before induction", title="Position",
-             summary="ramp (ear canal level with sternal notch), left tilt about 15°",
-             actions=("Ramp head-up until the ear canal is level with the sternal notch.",
-                      "Left uterine displacement of about 15 degrees (tilt or wedge)."),
-             basis=POSITION_EVIDENCE.describe()),
-        Step(id="preoxygenate", phase="before induction", title="Pre-oxygenate",
-             summary=f"pre-oxygenate FiO2 1.0 to end-tidal O2 ≥ {PREOX_TARGET_FEO2:g}; "
-                     "nasal O2 on",
-             actions=("FiO2 1.0 by tight-fitting mask at 15 L/min or more: 3 min of tidal "
-                      "breathing or 8 vital-capacity breaths in 60 s.",
-                      f"Aim for an end-tidal O2 fraction of at least {PREOX_TARGET_FEO2:g}.",
-                      "Nasal oxygen on and left on through apnoea (apnoeic oxygenation)."),
-             basis=PREOX_EVIDENCE.describe()),
-        Step(id="antacid", phase="before induction", title="Antacid prophylaxis",
-             summary="antacid: H2 antagonist or PPI, sodium citrate 30 mL",
-             actions=("H2-receptor antagonist or proton-pump inhibitor given; sodium citrate "
-                      "0.3 M 30 mL just before induction.",),
-             basis=ANTACID_EVIDENCE.describe()),
-        Step(id="drugs", phase="before induction", title="Drugs drawn up and labelled",
-             summary="drugs drawn up (doses above), sugammadex if rocuronium",
-             actions=(f"Induction: propofol {_range(prop)} or thiopental {_range(thio)}.",
-                      f"Block: suxamethonium {_range(sux)} or rocuronium {_range(roc)}.",
-                      f"If rocuronium: sugammadex {_range(sgx)} drawn up and to hand.",
-                      "Vasopressor drawn up.")),
-        Step(id="cricoid", phase="before induction", title="Cricoid force",
-             summary=f"cricoid {CRICOID_AWAKE_N} N awake -> {CRICOID_ASLEEP_N} N asleep; "
-                     "ease if difficult",
-             actions=(f"{CRICOID_AWAKE_N} N while awake, rising to {CRICOID_ASLEEP_N} N once "
-                      "consciousness is lost.",
-                      "Reduce or release it if laryngoscopy, mask ventilation or supraglottic "
-                      "insertion is difficult."),
-             basis=CRICOID_EVIDENCE.describe()),
-        Step(id="reassess", phase="before induction", title="Reassess the airway now",
-             summary="reassess Mallampati and oedema signs on the table",
-             actions=("Repeat Mallampati and look for new oedema signs (voice, stridor, "
-                      "tongue) on the table before induction.",)),
-        Step(id="intubate", phase="first attempt", title="Intubate",
-             summary=f"intubate: {eq.first_laryngoscope.split(' (')[0]}, bougie, tube "
-                     f"{tubes.first:.1f} -> {tubes.backup:.1f} -> {tubes.smallest:.1f} mm; "
-                     f"at most {MAX_INTUBATION_ATTEMPTS} attempts",
-             actions=(f"First device: {eq.first_laryngoscope}; bougie to hand.",
-                      f"Tube {tubes.first:.1f} mm; then {tubes.backup:.1f} mm; smallest "
-                      f"{tubes.smallest:.1f} mm.",
-                      f"At most {MAX_INTUBATION_ATTEMPTS} attempts; a third only by a more "
-                      "experienced anaesthetist.",
-                      "Between attempts: gentle mask ventilation, change position, blade or "
-                      "device, ease cricoid force.",
-                      "Confirm with a sustained capnography trace.")),
-        Step(id="declare", phase="failed intubation", title="Declare failed intubation",
-             summary="failed: say so aloud, call senior help, surgery waits",
-             actions=("Say it aloud: 'failed intubation'. Call for senior help.",
-                      "Surgery does not start; the obstetrician waits.")),
-        Step(id="supraglottic", phase="failed intubation", title="Supraglottic rescue",
-             summary=f"supraglottic size {eq.supraglottic_size:g}, at most {MAX_SGA_ATTEMPTS} "
-                     "attempts; else two-person face mask",
-             actions=(f"Second-generation supraglottic airway size {eq.supraglottic_size:g}; "
-                      f"at most {MAX_SGA_ATTEMPTS} insertion attempts.",
-                      "Ease cricoid force during insertion.",
-                      "If it fails: two-person face-mask ventilation with an oral airway."),
-             basis=SGA_ATTEMPTS_EVIDENCE.describe()),
-        Step(id="wake_or_proceed", phase="wake or proceed",
-             title="Carry out the pre-made decision",
-             summary=f"pre-made decision: {pre}",
-             actions=(f"Pre-made decision: {pre}.",
-                      "Wake: keep oxygenating; if rocuronium was given, sugammadex "
-                      f"{_range(sgx)}; then plan a regional or awake technique.",
-                      "Proceed: continue on the supraglottic airway, maintain anaesthesia, "
-                      "surgeon told, most experienced person holds the airway.",
-                      *decision.conditions[:1])),
-        Step(id="cico", phase="can't intubate, can't oxygenate",
-             title="Can't intubate, can't oxygenate: front-of-neck access",
-             summary=f"CICO: scalpel (no. 10), bougie, {eq.front_of_neck_tube_mm:.1f} mm tube; "
-                     "perimortem caesarean if circulation fails",
-             actions=("Declare it aloud. 100% oxygen by face mask and supraglottic airway "
-                      "throughout; make sure she is paralysed.",
-                      f"Scalpel cricothyroidotomy: wide (no. 10) blade, bougie, "
-                      f"{eq.front_of_neck_tube_mm:.1f} mm cuffed tube; confirm with capnography.",
-                      "Membrane not palpable: 8-10 cm vertical midline incision, blunt "
-                      "dissection, then as above.",
-                      "If maternal circulation fails: perimortem caesarean section."),
-             basis=f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}"),
-        Step(id="after", phase="after the event", title="After the event",
-             summary="after: airway alert, record, debrief, letter",
-             actions=("Airway alert recorded in her notes.",
-                      "Full record: grades, devices, attempts, what worked.",
-                      "Team debrief; incident report per local policy.",
-                      "Explain to her, and send a letter to her and her family doctor.")),
+        Step(
+            id="brief",
+            phase="before induction",
+            title="Team brief, aloud",
+            summary=f"brief aloud: level {risk.level}, pre-made decision, roles",
+            actions=(
+                f"Airway level {risk.level} of 4: {risk.label}.",
+                f"If intubation fails, the pre-made decision is: {pre}.",
+                "Agree who calls for help, who gives cricoid force, who opens the "
+                "front-of-neck kit.",
+            ),
+        ),
+        Step(
+            id="position",
+            phase="before induction",
+            title="Position",
+            summary="ramp (ear canal level with sternal notch), left tilt about 15°",
+            actions=(
+                "Ramp head-up until the ear canal is level with the sternal notch.",
+                "Left uterine displacement of about 15 degrees (tilt or wedge).",
+            ),
+            basis=POSITION_EVIDENCE.describe(),
+        ),
+        Step(
+            id="preoxygenate",
+            phase="before induction",
+            title="Pre-oxygenate",
+            summary=f"pre-oxygenate FiO2 1.0 to end-tidal O2 ≥ {PREOX_TARGET_FEO2:g}; nasal O2 on",
+            actions=(
+                "FiO2 1.0 by tight-fitting mask at 15 L/min or more: 3 min of tidal "
+                "breathing or 8 vital-capacity breaths in 60 s.",
+                f"Aim for an end-tidal O2 fraction of at least {PREOX_TARGET_FEO2:g}.",
+                "Nasal oxygen on and left on through apnoea (apnoeic oxygenation).",
+            ),
+            basis=PREOX_EVIDENCE.describe(),
+        ),
+        Step(
+            id="antacid",
+            phase="before induction",
+            title="Antacid prophylaxis",
+            summary="antacid: H2 antagonist or PPI, sodium citrate 30 mL",
+            actions=(
+                "H2-receptor antagonist or proton-pump inhibitor given; sodium citrate "
+                "0.3 M 30 mL just before induction.",
+            ),
+            basis=ANTACID_EVIDENCE.describe(),
+        ),
+        Step(
+            id="drugs",
+            phase="before induction",
+            title="Drugs drawn up and labelled",
+            summary="drugs drawn up (doses above), sugammadex if rocuronium",
+            actions=(
+                f"Induction: propofol {_range(prop)} or thiopental {_range(thio)}.",
+                f"Block: suxamethonium {_range(sux)} or rocuronium {_range(roc)}.",
+                f"If rocuronium: sugammadex {_range(sgx)} drawn up and to hand.",
+                "Vasopressor drawn up.",
+            ),
+        ),
+        Step(
+            id="cricoid",
+            phase="before induction",
+            title="Cricoid force",
+            summary=f"cricoid {CRICOID_AWAKE_N} N awake -> {CRICOID_ASLEEP_N} N asleep; "
+            "ease if difficult",
+            actions=(
+                f"{CRICOID_AWAKE_N} N while awake, rising to {CRICOID_ASLEEP_N} N once "
+                "consciousness is lost.",
+                "Reduce or release it if laryngoscopy, mask ventilation or supraglottic "
+                "insertion is difficult.",
+            ),
+            basis=CRICOID_EVIDENCE.describe(),
+        ),
+        Step(
+            id="reassess",
+            phase="before induction",
+            title="Reassess the airway now",
+            summary="reassess Mallampati and oedema signs on the table",
+            actions=(
+                "Repeat Mallampati and look for new oedema signs (voice, stridor, "
+                "tongue) on the table before induction.",
+            ),
+        ),
+        Step(
+            id="intubate",
+            phase="first attempt",
+            title="Intubate",
+            summary=f"intubate: {eq.first_laryngoscope.split(' (')[0]}, bougie, tube "
+            f"{tubes.first:.1f} -> {tubes.backup:.1f} -> {tubes.smallest:.1f} mm; "
+            f"at most {MAX_INTUBATION_ATTEMPTS} attempts",
+            actions=(
+                f"First device: {eq.first_laryngoscope}; bougie to hand.",
+                f"Tube {tubes.first:.1f} mm; then {tubes.backup:.1f} mm; smallest "
+                f"{tubes.smallest:.1f} mm.",
+                f"At most {MAX_INTUBATION_ATTEMPTS} attempts; a third only by a more "
+                "experienced anaesthetist.",
+                "Between attempts: gentle mask ventilation, change position, blade or "
+                "device, ease cricoid force.",
+                "Confirm with a sustained capnography trace.",
+            ),
+        ),
+        Step(
+            id="declare",
+            phase="failed intubation",
+            title="Declare failed intubation",
+            summary="failed: say so aloud, call senior help, surgery waits",
+            actions=(
+                "Say it aloud: 'failed intubation'. Call for senior help.",
+                "Surgery does not start; the obstetrician waits.",
+            ),
+        ),
+        Step(
+            id="supraglottic",
+            phase="failed intubation",
+            title="Supraglottic rescue",
+            summary=f"supraglottic size {eq.supraglottic_size:g}, at most {MAX_SGA_ATTEMPTS} "
+            "attempts; else two-person face mask",
+            actions=(
+                f"Second-generation supraglottic airway size {eq.supraglottic_size:g}; "
+                f"at most {MAX_SGA_ATTEMPTS} insertion attempts.",
+                "Ease cricoid force during insertion.",
+                "If it fails: two-person face-mask ventilation with an oral airway.",
+            ),
+            basis=SGA_ATTEMPTS_EVIDENCE.describe(),
+        ),
+        Step(
+            id="wake_or_proceed",
+            phase="wake or proceed",
+            title="Carry out the pre-made decision",
+            summary=f"pre-made decision: {pre}",
+            actions=(
+                f"Pre-made decision: {pre}.",
+                "Wake: keep oxygenating; if rocuronium was given, sugammadex "
+                f"{_range(sgx)}; then plan a regional or awake technique.",
+                "Proceed: continue on the supraglottic airway, maintain anaesthesia, "
+                "surgeon told, most experienced person holds the airway.",
+                *decision.conditions[:1],
+            ),
+        ),
+        Step(
+            id="cico",
+            phase="can't intubate, can't oxygenate",
+            title="Can't intubate, can't oxygenate: front-of-neck access",
+            summary=f"CICO: scalpel (no. 10), bougie, {eq.front_of_neck_tube_mm:.1f} mm tube; "
+            "perimortem caesarean if circulation fails",
+            actions=(
+                "Declare it aloud. 100% oxygen by face mask and supraglottic airway "
+                "throughout; make sure she is paralysed.",
+                f"Scalpel cricothyroidotomy: wide (no. 10) blade, bougie, "
+                f"{eq.front_of_neck_tube_mm:.1f} mm cuffed tube; confirm with capnography.",
+                "Membrane not palpable: 8-10 cm vertical midline incision, blunt "
+                "dissection, then as above.",
+                "If maternal circulation fails: perimortem caesarean section.",
+            ),
+            basis=f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}",
+        ),
+        Step(
+            id="after",
+            phase="after the event",
+            title="After the event",
+            summary="after: airway alert, record, debrief, letter",
+            actions=(
+                "Airway alert recorded in her notes.",
+                "Full record: grades, devices, attempts, what worked.",
+                "Team debrief; incident report per local policy.",
+                "Explain to her, and send a letter to her and her family doctor.",
+            ),
+        ),
     ]
     return tuple(steps)
 
@@ -251,8 +332,10 @@ def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[st
         out.insert(0, "Mallampati not assessed: the level may understate the difficulty.")
     unscaled = [d.label for d in doses if not d.scaled_as_intended]
     if unscaled:
-        out.append("Not scaled to lean or ideal weight (height missing), shown on total "
-                   "weight instead: " + ", ".join(unscaled) + ".")
+        out.append(
+            "Not scaled to lean or ideal weight (height missing), shown on total "
+            "weight instead: " + ", ".join(unscaled) + "."
+        )
     return out
 
 

@@ -37,8 +37,10 @@ def render_markdown(plan: Plan) -> str:
     add(f"## Level {r.level} of 4: {r.label}")
     add("")
     lo, mid, hi = r.thresholds
-    add(f"Index **{r.index:.2f}** (level 2 from {lo:.2f}, 3 from {mid:.2f}, 4 from {hi:.2f}). "
-        + r.note)
+    add(
+        f"Index **{r.index:.2f}** (level 2 from {lo:.2f}, 3 from {mid:.2f}, 4 from {hi:.2f}). "
+        + r.note
+    )
     if r.overrides:
         add("")
         add("Forced to level 4 by: " + ", ".join(r.overrides) + ".")
@@ -47,8 +49,10 @@ def render_markdown(plan: Plan) -> str:
     add("|---|---|---|---:|---|")
     for f in r.factors:
         if f.present:
-            add(f"| {_esc(f.label)} | {_esc(f.detail or 'present')} | {weight_text(f)} | "
-                f"{f.contribution:.2f} | {_esc(f.evidence)} |")
+            add(
+                f"| {_esc(f.label)} | {_esc(f.detail or 'present')} | {weight_text(f)} | "
+                f"{f.contribution:.2f} | {_esc(f.evidence)} |"
+            )
     if plan.not_assessed:
         add("")
         add("**Not assessed:** " + ", ".join(plan.not_assessed) + ".")
@@ -64,17 +68,21 @@ def render_markdown(plan: Plan) -> str:
     if b.bmi is None:
         add(f"Weight {b.weight_kg:g} kg; height not given.")
     else:
-        add(f"Weight {b.weight_kg:g} kg, height {b.height_cm:g} cm, BMI {b.bmi:.1f} "
+        add(
+            f"Weight {b.weight_kg:g} kg, height {b.height_cm:g} cm, BMI {b.bmi:.1f} "
             f"({b.bmi_class}); ideal {b.ideal_weight_kg:.1f} kg, lean {b.lean_weight_kg:.1f} kg, "
-            f"adjusted {b.adjusted_weight_kg:.1f} kg.")
+            f"adjusted {b.adjusted_weight_kg:.1f} kg."
+        )
     add("")
     add("Basis: " + "; ".join(b.basis) + ".")
     add("")
     add("## Equipment")
     add("")
-    add(f"Tubes **{t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm** (first / backup / "
+    add(
+        f"Tubes **{t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm** (first / backup / "
         f"smallest: {t.reason}); supraglottic **size {e.supraglottic_size:g}**; front-of-neck "
-        f"tube **{e.front_of_neck_tube_mm:.1f} mm**; first device: {e.first_laryngoscope}.")
+        f"tube **{e.front_of_neck_tube_mm:.1f} mm**; first device: {e.first_laryngoscope}."
+    )
     add("")
     for item in e.items:
         where = "open" if item.open_now else "in the room"
@@ -89,8 +97,10 @@ def render_markdown(plan: Plan) -> str:
     for dose in plan.doses:
         notes = dose.note
         for alt in dose.alternatives:
-            notes += (f" Alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg gives "
-                      f"{alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg.")
+            notes += (
+                f" Alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg gives "
+                f"{alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg."
+            )
         add(f"| {dose.label} | {dose_text(dose)} | {per_kg_text(dose)} | {_esc(notes.strip())} |")
     add("")
     add("Basis: " + " ".join(f"{dose.label}: {dose.basis}." for dose in plan.doses))
@@ -101,14 +111,17 @@ def render_markdown(plan: Plan) -> str:
     add("")
     add("| Factor | Finding | Points | Points to |")
     add("|---|---|---:|---|")
-    for f in d.factors:
-        pts = "?" if f.points_to == "unknown" else f"{f.points:+d}"
-        add(f"| {f.name} | {_esc(f.finding)}{' (derived)' if f.derived else ''} | {pts} | "
-            f"{f.points_to} |")
+    for df in d.factors:
+        pts = "?" if df.points_to == "unknown" else f"{df.points:+d}"
+        add(
+            f"| {df.name} | {_esc(df.finding)}{' (derived)' if df.derived else ''} | {pts} | "
+            f"{df.points_to} |"
+        )
     if d.if_category:
         add("")
-        add("By urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
-            + ".")
+        add(
+            "By urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items()) + "."
+        )
     add("")
     add("Final decision, ticked before induction: \\[ \\] wake \\[ \\] proceed")
     add("")

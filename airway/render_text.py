@@ -34,8 +34,11 @@ _DECISION = {
 
 def _wrap(text: str, indent: str = "  ", first: str | None = None) -> list[str]:
     return textwrap.wrap(
-        text, WIDTH, initial_indent=first if first is not None else indent,
-        subsequent_indent=indent, break_on_hyphens=False,
+        text,
+        WIDTH,
+        initial_indent=first if first is not None else indent,
+        subsequent_indent=indent,
+        break_on_hyphens=False,
     ) or [indent.rstrip()]
 
 
@@ -56,14 +59,16 @@ def dose_text(d: Dose) -> str:
     """'95-142.5 mg (1.9-2.9 mL)' or '1520 mg (15.2 mL)'."""
     if d.dose_mg_low == d.dose_mg_high:
         return f"{d.dose_mg_low:g} mg ({d.volume_ml_low:g} mL)"
-    return (f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg "
-            f"({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)")
+    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
 
 
 def per_kg_text(d: Dose) -> str:
     """'1-1.5 mg/kg x total body weight 95 kg'."""
-    per = (f"{d.mg_per_kg_low:g}" if d.mg_per_kg_low == d.mg_per_kg_high
-           else f"{d.mg_per_kg_low:g}-{d.mg_per_kg_high:g}")
+    per = (
+        f"{d.mg_per_kg_low:g}"
+        if d.mg_per_kg_low == d.mg_per_kg_high
+        else f"{d.mg_per_kg_low:g}-{d.mg_per_kg_high:g}"
+    )
     return f"{per} mg/kg x {SCALAR_LABEL[d.scalar]} {d.scalar_weight_kg:g} kg"
 
 
@@ -89,8 +94,9 @@ def _risk(plan: Plan) -> list[str]:
     r = plan.risk
     lo, mid, hi = r.thresholds
     lines = _heading(f"Level {r.level} of 4: {r.label}")
-    lines.append(f"  index {r.index:.2f} (level 2 from {lo:.2f}, 3 from {mid:.2f}, "
-                 f"4 from {hi:.2f})")
+    lines.append(
+        f"  index {r.index:.2f} (level 2 from {lo:.2f}, 3 from {mid:.2f}, 4 from {hi:.2f})"
+    )
     if r.overrides:
         lines.append("  forced to level 4 by: " + ", ".join(r.overrides))
     present = [f for f in r.factors if f.present and f.role != "preparation"]
@@ -125,10 +131,13 @@ def _body(plan: Plan) -> list[str]:
     if b.bmi is None:
         lines.append(f"  weight {b.weight_kg:g} kg; height not given")
         return lines
-    lines.append(f"  weight {b.weight_kg:g} kg, height {b.height_cm:g} cm, BMI {b.bmi:.1f} "
-                 f"({b.bmi_class})")
-    lines.append(f"  ideal {b.ideal_weight_kg:.1f} kg, lean {b.lean_weight_kg:.1f} kg, "
-                 f"adjusted {b.adjusted_weight_kg:.1f} kg")
+    lines.append(
+        f"  weight {b.weight_kg:g} kg, height {b.height_cm:g} cm, BMI {b.bmi:.1f} ({b.bmi_class})"
+    )
+    lines.append(
+        f"  ideal {b.ideal_weight_kg:.1f} kg, lean {b.lean_weight_kg:.1f} kg, "
+        f"adjusted {b.adjusted_weight_kg:.1f} kg"
+    )
     if b.booking_bmi is not None:
         lines.append(f"  booking BMI {b.booking_bmi:.1f}")
     lines += _wrap("Basis: " + "; ".join(b.basis))
@@ -139,14 +148,21 @@ def _equipment(plan: Plan) -> list[str]:
     e = plan.equipment
     t = e.tracheal_tube_mm
     lines = _heading("Equipment")
-    lines += _wrap(f"tubes {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm (first / "
-                   f"backup / smallest: {t.reason})")
-    lines += _wrap(f"supraglottic size {e.supraglottic_size:g}; front-of-neck tube "
-                   f"{e.front_of_neck_tube_mm:.1f} mm; first: {e.first_laryngoscope}")
+    lines += _wrap(
+        f"tubes {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm (first / "
+        f"backup / smallest: {t.reason})"
+    )
+    lines += _wrap(
+        f"supraglottic size {e.supraglottic_size:g}; front-of-neck tube "
+        f"{e.front_of_neck_tube_mm:.1f} mm; first: {e.first_laryngoscope}"
+    )
     for item in e.items:
         box = "[ ]"
-        lines += _wrap(f"{item.name}: {item.detail} ({item.why})"
-                       f"{'' if item.open_now else ' - in the room'}", "      ", f"  {box} ")
+        lines += _wrap(
+            f"{item.name}: {item.detail} ({item.why}){'' if item.open_now else ' - in the room'}",
+            "      ",
+            f"  {box} ",
+        )
     lines += _wrap("Tube sizes: " + t.evidence)
     lines += _wrap("Supraglottic size: " + e.supraglottic_basis)
     return lines
@@ -158,8 +174,11 @@ def _doses(plan: Plan) -> list[str]:
         lines.append(f"  {d.label:<32} {dose_text(d)}")
         lines += _wrap(per_kg_text(d), "      ", "      ")
         for alt in d.alternatives:
-            lines += _wrap(f"alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg "
-                           f"gives {alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg", "      ")
+            lines += _wrap(
+                f"alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg "
+                f"gives {alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg",
+                "      ",
+            )
         if d.note:
             lines += _wrap(d.note, "      ")
         lines += _wrap("Basis: " + d.basis, "      ")
@@ -172,11 +191,11 @@ def _decision(plan: Plan) -> list[str]:
     for f in d.factors:
         sign = f"{f.points:+d}" if f.points_to != "unknown" else " ?"
         derived = " (derived)" if f.derived else ""
-        lines += _wrap(f"{sign:>3} {f.points_to:<8} {f.name}: {f.finding}{derived}",
-                       " " * 15, "  ")
+        lines += _wrap(f"{sign:>3} {f.points_to:<8} {f.name}: {f.finding}{derived}", " " * 15, "  ")
     if d.if_category:
-        lines += _wrap("by urgency category: " + ", ".join(
-            f"{k}: {v}" for k, v in d.if_category.items()))
+        lines += _wrap(
+            "by urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
+        )
     lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
     for c in d.conditions:
         lines += _wrap(c, "    ", "  - ")
@@ -223,8 +242,10 @@ def _compact(plan: Plan) -> list[str]:
     """One screen: everything needed at a category-1 section, nothing more."""
     r, e, d = plan.risk, plan.equipment, plan.decision
     t = e.tracheal_tube_mm
-    lines = [f"LEVEL {r.level} of 4: {r.label}",
-             f"  index {r.index:.2f} (ranks risk; not a probability)"]
+    lines = [
+        f"LEVEL {r.level} of 4: {r.label}",
+        f"  index {r.index:.2f} (ranks risk; not a probability)",
+    ]
     if r.overrides:
         lines.append("  forced to level 4 by: " + ", ".join(r.overrides))
     present = [f for f in r.factors if f.present and f.role != "preparation"]
@@ -236,10 +257,16 @@ def _compact(plan: Plan) -> list[str]:
     if prep:
         lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
     lines += _not_assessed(plan)
-    lines += ["", f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   "
-                  f"SUPRAGLOTTIC size {e.supraglottic_size:g}   FRONT-OF-NECK "
-                  f"{e.front_of_neck_tube_mm:.1f} mm"]
-    lines += _wrap("first device: " + e.first_laryngoscope)
+    lines += [
+        "",
+        *_wrap(
+            f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   SUPRAGLOTTIC size "
+            f"{e.supraglottic_size:g}   FRONT-OF-NECK {e.front_of_neck_tube_mm:.1f} mm   first: "
+            f"{e.first_laryngoscope}",
+            "  ",
+            "",
+        ),
+    ]
     lines += ["", "DOSES (calculation aid: check and titrate)"]
     for dose in plan.doses:
         name = dose.label.split(" (")[0]
@@ -247,14 +274,19 @@ def _compact(plan: Plan) -> list[str]:
         lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
     lines += ["", f"IF INTUBATION FAILS: {_DECISION[d.recommendation]}"]
     for direction in ("proceed", "wake", "neither", "unknown"):
-        names = [f"{f.name.split(' (')[0].lower()} {f.points:+d}" if direction != "unknown"
-                 else f.name.split(" (")[0].lower()
-                 for f in d.factors if f.points_to == direction]
+        names = [
+            f"{f.name.split(' (')[0].lower()} {f.points:+d}"
+            if direction != "unknown"
+            else f.name.split(" (")[0].lower()
+            for f in d.factors
+            if f.points_to == direction
+        ]
         if names:
             lines += _wrap(f"{direction}: " + ", ".join(names), "    ", "  ")
     if d.if_category:
-        lines += _wrap("by urgency category: " + ", ".join(
-            f"{k}: {v}" for k, v in d.if_category.items()))
+        lines += _wrap(
+            "by urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
+        )
     lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
     lines += ["", "SEQUENCE"]
     shown = [s for s in plan.steps if s.id not in _COMPACT_SKIP]
@@ -269,11 +301,26 @@ def _compact(plan: Plan) -> list[str]:
 
 def render_text(plan: Plan, compact: bool = False) -> str:
     """The plan as plain text at 80 columns; ``compact`` for one screen."""
-    lines = _header(plan)
     if compact:
+        g = plan.generated_by
+        lines = [
+            f"AIRWAY PLAN (one screen)  {g.tool} {g.version}, rules {g.rules_version}, "
+            f"input {plan.input_sha256[:8]}"
+        ]
+        lines += _wrap(" ".join(plan.cautions[:2]), "  ", "! ")
         lines += _compact(plan)
     else:
-        lines += (_risk(plan) + _not_assessed(plan) + _preparation(plan) + _body(plan)
-                  + _equipment(plan) + _doses(plan) + _decision(plan) + _steps(plan)
-                  + _warnings(plan) + _cautions(plan))
+        lines = _header(plan)
+        lines += (
+            _risk(plan)
+            + _not_assessed(plan)
+            + _preparation(plan)
+            + _body(plan)
+            + _equipment(plan)
+            + _doses(plan)
+            + _decision(plan)
+            + _steps(plan)
+            + _warnings(plan)
+            + _cautions(plan)
+        )
     return "\n".join(line.rstrip() for line in lines) + "\n"

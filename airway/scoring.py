@@ -108,11 +108,7 @@ def score(assessment: Assessment, body: BodySize) -> Risk:
     overrides = tuple(r.label for r in results if r.role == "override" and r.present)
     index_level = level_for_index(index)
     level = 4 if overrides else index_level
-    not_assessed = tuple(
-        dict.fromkeys(
-            _finding_name(r.id) for r in results if r.present is None
-        )
-    )
+    not_assessed = tuple(dict.fromkeys(_finding_name(r.id) for r in results if r.present is None))
     return Risk(
         level=level,
         label=LEVEL_LABELS[level],

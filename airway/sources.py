@@ -317,8 +317,7 @@ _ALL = [
     Source(
         "nunn",
         "Nunn's Applied Respiratory Physiology",
-        "Lumb AB. Nunn's Applied Respiratory Physiology (oxygen stores and "
-        "consumption chapters).",
+        "Lumb AB. Nunn's Applied Respiratory Physiology (oxygen stores and consumption chapters).",
     ),
     Source(
         "pillai2016",

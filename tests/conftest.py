@@ -1,0 +1,31 @@
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from airway.assessment import Assessment
+from airway.loading import assessment_from_mapping
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLES = sorted((ROOT / "examples").glob("*.*"))
+
+
+@pytest.fixture(autouse=True)
+def _clean_env(monkeypatch: pytest.MonkeyPatch) -> None:
+    for name in ("NO_COLOR", "FORCE_COLOR", "COLUMNS", "TERM"):
+        monkeypatch.delenv(name, raising=False)
+
+
+@pytest.fixture
+def runner() -> CliRunner:
+    return CliRunner()
+
+
+def make(**sections: dict) -> Assessment:
+    """An assessment from section dicts; weight 80 kg / height 165 cm unless given."""
+    data = {k: dict(v) for k, v in sections.items()}
+    patient = {"weight_kg": 80, "height_cm": 165}
+    patient.update(data.pop("patient", {}))
+    return assessment_from_mapping({"patient": patient, **data})

@@ -1,0 +1,95 @@
+"""Equipment: tube sizes, supraglottic bands, front-of-neck kit."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from airway.body import body_size
+from airway.equipment import choose_equipment, choose_tubes, load_catalogue
+from airway.errors import CatalogueError
+
+from .conftest import make
+
+CATALOGUE = load_catalogue()
+
+
+def test_front_of_neck_tube_is_6mm() -> None:
+    """DAS 2015 (Frerk), from memory; corroborated by secondary sources: 6.0 mm cuffed."""
+    assert CATALOGUE.front_of_neck_tube_mm == 6.0
+
+
+@pytest.mark.parametrize(("weight", "size"), [(45, 3), (70, 4), (95, 5)])
+def test_supraglottic_bands_match_makers_published_bands(weight: float, size: int) -> None:
+    """Makers' bands as quoted in the literature (3 < 50 kg, 4 50-90 kg, 5 > 90 kg)."""
+    assert CATALOGUE.supraglottic_size(weight) == size
+
+
+def test_routine_tubes_within_traditional_obstetric_range() -> None:
+    """Traditional obstetric range 6.0-7.0 mm; 6.0 mm still takes the usual aids
+    (MGH handbook; Karmali & Rose 2020)."""
+    t = choose_tubes(make(), CATALOGUE)
+    assert 6.0 <= t.smallest <= t.backup <= t.first <= 7.0
+    assert t.smallest == 6.0
+
+
+def test_oedema_gives_smaller_tubes() -> None:
+    routine = choose_tubes(make(), CATALOGUE)
+    oedema = choose_tubes(make(preeclampsia={"signs": ["voice_change"]}), CATALOGUE)
+    assert oedema.first < routine.first and oedema.smallest < 6.0
+
+
+_STATUSES = st.sampled_from([None, "none", "without_severe_features", "with_severe_features"])
+_SIGNS = st.lists(
+    st.sampled_from(
+        [
+            "voice_change",
+            "stridor",
+            "facial_oedema",
+            "tongue_swelling",
+            "new_snoring",
+            "breathless_lying_flat",
+        ]
+    ),
+    max_size=3,
+)
+
+
+@settings(max_examples=100, deadline=None)
+@given(status=_STATUSES, signs=_SIGNS, more=_SIGNS)
+def test_adding_preeclampsia_or_oedema_never_enlarges_first_tube(status, signs, more) -> None:
+    pe = {"signs": signs} | ({"status": status} if status else {})
+    before = choose_tubes(make(preeclampsia=pe), CATALOGUE)
+    worse = {"status": "with_severe_features", "signs": signs + more}
+    after = choose_tubes(make(preeclampsia=worse), CATALOGUE)
+    assert after.first <= before.first
+
+
+def test_only_stocked_sizes_are_suggested(tmp_path: Path) -> None:
+    text = Path(__file__).parent.parent.joinpath("airway/data/equipment.toml").read_text()
+    text = text.replace("[5.0, 5.5, 6.0, 6.5, 7.0, 7.5]", "[6.0, 7.5]")
+    custom = tmp_path / "unit.toml"
+    custom.write_text(text)
+    cat = load_catalogue(custom)
+    for pe in ({}, {"status": "without_severe_features"}, {"signs": ["stridor"]}):
+        t = choose_tubes(make(preeclampsia=pe), cat)
+        assert {t.first, t.backup, t.smallest} <= {6.0, 7.5}
+
+
+def test_catalogue_without_front_of_neck_size_is_refused(tmp_path: Path) -> None:
+    text = Path(__file__).parent.parent.joinpath("airway/data/equipment.toml").read_text()
+    bad = tmp_path / "bad.toml"
+    bad.write_text(text.replace("[5.0, 5.5, 6.0, 6.5, 7.0, 7.5]", "[7.0, 7.5]"))
+    with pytest.raises(CatalogueError, match="front_of_neck_tube_mm"):
+        load_catalogue(bad)
+
+
+def test_large_breasts_open_a_short_handle() -> None:
+    a = make(airway={"large_breasts": True})
+    eq = choose_equipment(a, body_size(80, 165), 1, CATALOGUE)
+    assert any(i.name == "Short-handled laryngoscope" for i in eq.items)
+    eq = choose_equipment(make(), body_size(80, 165), 1, CATALOGUE)
+    assert not any(i.name == "Short-handled laryngoscope" for i in eq.items)
