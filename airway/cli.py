@@ -205,6 +205,30 @@ def quick(
 
 
 @app.command()
+def oxygen(
+    file: Annotated[str, typer.Argument(help="Assessment file (.toml or .json), or - for stdin.")],
+    end_tidal_o2: Annotated[
+        float, typer.Option(min=0.5, max=0.95, help="End-tidal O2 fraction reached.")
+    ] = 0.9,
+    as_json: Annotated[bool, typer.Option("--json", help="As JSON.")] = False,
+) -> None:
+    """Predicted minutes to desaturation: scenarios side by side.
+
+    Example: airway oxygen examples/clinic-raised-bmi.toml --end-tidal-o2 0.8
+    """
+    from .loading import read_assessment
+    from .oxygenation import oxygenation_for
+    from .render_text import oxygenation_lines
+
+    with _errors():
+        oxy = oxygenation_for(read_assessment(file), feo2=end_tidal_o2)
+    if as_json:
+        sys.stdout.write(json.dumps(oxy.model_dump(mode="json"), indent=2, sort_keys=True) + "\n")
+    else:
+        sys.stdout.write("\n".join(oxygenation_lines(oxy)[1:]) + "\n")
+
+
+@app.command()
 def factors(
     as_json: Annotated[bool, typer.Option("--json", help="As JSON.")] = False,
 ) -> None:

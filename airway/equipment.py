@@ -182,7 +182,11 @@ def choose_tubes(assessment: Assessment, catalogue: Catalogue) -> TubeSizes:
 
 
 def choose_equipment(
-    assessment: Assessment, body: BodySize, level: int, catalogue: Catalogue
+    assessment: Assessment,
+    body: BodySize,
+    level: int,
+    catalogue: Catalogue,
+    short_apnoea: bool = False,
 ) -> Equipment:
     """Everything to open for this woman, each item with its reason."""
     tubes = choose_tubes(assessment, catalogue)
@@ -192,6 +196,12 @@ def choose_equipment(
     high_bmi = body.bmi is not None and body.bmi >= SHORT_HANDLE_BMI
     breasts = bool(assessment.airway.large_breasts)
     video_first = level >= VIDEO_FIRST_LEVEL or high_bmi
+    fona_open = level == 4 or short_apnoea
+    high_flow = (
+        short_apnoea
+        or level >= VIDEO_FIRST_LEVEL
+        or bool(assessment.history.obstructive_sleep_apnoea)
+    )
     items = [
         Item(
             name="Tracheal tubes (cuffed)",
@@ -242,8 +252,17 @@ def choose_equipment(
             detail=f"scalpel with a wide (no. 10) blade, bougie, "
             f"{catalogue.front_of_neck_tube_mm:.1f} mm cuffed tube",
             why="can't intubate, can't oxygenate"
-            + ("; level 4: opened and within reach" if level == 4 else ""),
-            open_now=level == 4,
+            + ("; opened and within reach" if fona_open else ""),
+            open_now=fona_open,
+        ),
+        Item(
+            name="Nasal oxygen",
+            detail="nasal cannulae; high-flow nasal oxygen set up"
+            if high_flow
+            else "nasal cannulae at low flow",
+            why="apnoeic oxygenation"
+            + ("; short predicted time to desaturation" if short_apnoea else ""),
+            open_now=True,
         ),
     ]
     return Equipment(

@@ -17,6 +17,7 @@ from .body import BodySize, body_size
 from .decision import Decision, decide
 from .doses import Dose, compute_doses
 from .equipment import Catalogue, Equipment, choose_equipment, load_catalogue
+from .oxygenation import Oxygenation, oxygenation_for
 from .scoring import Risk, score
 from .sources import Evidence
 
@@ -100,6 +101,7 @@ class Plan(BaseModel):
     equipment: Equipment
     doses: tuple[Dose, ...]
     decision: Decision
+    oxygenation: Oxygenation
     steps: tuple[Step, ...]
     preparation: tuple[str, ...]
     not_assessed: tuple[str, ...]
@@ -136,14 +138,30 @@ _DECISION_TEXT = {
 }
 
 
+def _minutes_text(minutes: float | None, horizon: float) -> str:
+    return f"more than {horizon:g} min" if minutes is None else f"about {minutes:g} min"
+
+
 def _steps(
-    a: Assessment, risk: Risk, eq: Equipment, doses: tuple[Dose, ...], decision: Decision
+    a: Assessment,
+    risk: Risk,
+    eq: Equipment,
+    doses: tuple[Dose, ...],
+    decision: Decision,
+    oxy: Oxygenation,
 ) -> tuple[Step, ...]:
     by = {d.drug: d for d in doses}
     tubes = eq.tracheal_tube_mm
     sux, roc, sgx = by["suxamethonium"], by["rocuronium"], by["sugammadex"]
     prop, thio = by["propofol"], by["thiopental"]
     pre = _DECISION_TEXT[decision.recommendation]
+    t90 = _minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)
+    short_actions: tuple[str, ...] = ()
+    if oxy.short:
+        short_actions = (
+            f"Predicted time to SpO2 90% is short ({t90}): high-flow nasal oxygen set up, "
+            "fewest attempts, front-of-neck kit open.",
+        )
     steps = [
         Step(
             id="brief",
@@ -172,12 +190,15 @@ def _steps(
             id="preoxygenate",
             phase="before induction",
             title="Pre-oxygenate",
-            summary=f"pre-oxygenate FiO2 1.0 to end-tidal O2 ≥ {PREOX_TARGET_FEO2:g}; nasal O2 on",
+            summary=f"pre-oxygenate FiO2 1.0 to end-tidal O2 ≥ {PREOX_TARGET_FEO2:g}; "
+            f"nasal O2 on; SpO2 90% {t90} after apnoea (model estimate)",
             actions=(
                 "FiO2 1.0 by tight-fitting mask at 15 L/min or more: 3 min of tidal "
                 "breathing or 8 vital-capacity breaths in 60 s.",
                 f"Aim for an end-tidal O2 fraction of at least {PREOX_TARGET_FEO2:g}.",
                 "Nasal oxygen on and left on through apnoea (apnoeic oxygenation).",
+                f"Model estimate: SpO2 falls to 90% {t90} after apnoea begins (not a guarantee).",
+                *short_actions,
             ),
             basis=PREOX_EVIDENCE.describe(),
         ),
@@ -254,6 +275,8 @@ def _steps(
             actions=(
                 "Say it aloud: 'failed intubation'. Call for senior help.",
                 "Surgery does not start; the obstetrician waits.",
+                f"Oxygenate first: SpO2 90% was predicted {t90} after apnoea began; "
+                "watch the saturation, not the clock.",
             ),
         ),
         Step(
@@ -353,13 +376,21 @@ def build_plan(assessment: Assessment, catalogue: Catalogue | None = None) -> Pl
     p = assessment.patient
     body = body_size(p.weight_kg, p.height_cm, p.booking_weight_kg)
     risk = score(assessment, body)
-    equipment = choose_equipment(assessment, body, risk.level, catalogue)
+    oxygenation = oxygenation_for(assessment)
+    equipment = choose_equipment(assessment, body, risk.level, catalogue, oxygenation.short)
     doses = compute_doses(body)
     decision = decide(assessment, body)
     preparation = tuple(
         f"{f.label}: {f.prepares}" for f in risk.factors if f.present and f.prepares
     )
-    cautions = (CAUTION_AID, CAUTION_REASSESS, CAUTION_DOSES, risk.note, CAUTION_WEAK_TESTS)
+    cautions = (
+        CAUTION_AID,
+        CAUTION_REASSESS,
+        CAUTION_DOSES,
+        risk.note,
+        CAUTION_WEAK_TESTS,
+        oxygenation.uncertainty,
+    )
     return Plan(
         generated_by=GeneratedBy(tool="airway", version=__version__, rules_version=RULES_VERSION),
         input_sha256=assessment_digest(assessment),
@@ -369,7 +400,8 @@ def build_plan(assessment: Assessment, catalogue: Catalogue | None = None) -> Pl
         equipment=equipment,
         doses=doses,
         decision=decision,
-        steps=_steps(assessment, risk, equipment, doses, decision),
+        oxygenation=oxygenation,
+        steps=_steps(assessment, risk, equipment, doses, decision, oxygenation),
         preparation=preparation,
         not_assessed=risk.not_assessed,
         warnings=tuple(_warnings(assessment, body, doses)),

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from .doses import SCALAR_LABEL
 from .plan import Plan
-from .render_text import dose_text, per_kg_text, weight_text
+from .render_text import dose_text, minutes_text, per_kg_text, weight_text
 
 _DECISION = {
     "wake": "**Wake** her",
@@ -75,6 +75,22 @@ def render_markdown(plan: Plan) -> str:
         )
     add("")
     add("Basis: " + "; ".join(b.basis) + ".")
+    add("")
+    oxy = plan.oxygenation
+    h = oxy.horizon_minutes
+    add("## Oxygenation during apnoea (model estimate)")
+    add("")
+    add("| Scenario | To SpO2 90% | To SpO2 80% |")
+    add("|---|---:|---:|")
+    for s in oxy.scenarios:
+        add(
+            f"| {s.label} | {minutes_text(s.minutes_to_spo2_90, h)} | "
+            f"{minutes_text(s.minutes_to_spo2_80, h)} |"
+        )
+    add("")
+    add(oxy.uncertainty + " Assumed: " + "; ".join(oxy.assumptions) + ".")
+    add("")
+    add("Basis: " + "; ".join(oxy.basis) + ".")
     add("")
     add("## Equipment")
     add("")

@@ -12,6 +12,7 @@ import textwrap
 
 from .body import BODY_FORMULA_WARNING
 from .doses import SCALAR_LABEL, Dose
+from .oxygenation import Oxygenation
 from .plan import Plan
 from .scoring import FactorResult
 
@@ -144,6 +145,35 @@ def _body(plan: Plan) -> list[str]:
     return lines
 
 
+def minutes_text(minutes: float | None, horizon: float) -> str:
+    """'4.9 min' or '> 20 min' when the model did not reach the threshold."""
+    return f"> {horizon:g} min" if minutes is None else f"{minutes:g} min"
+
+
+def oxygenation_lines(oxy: Oxygenation) -> list[str]:
+    """The scenarios side by side, with the model's inputs and its uncertainty."""
+    h = oxy.horizon_minutes
+    lines = _heading("Oxygenation during apnoea (model estimate)")
+    lines.append(f"  {'scenario':<46} {'to SpO2 90%':>12} {'to 80%':>9}")
+    for s in oxy.scenarios:
+        lines.append(
+            f"  {s.label[:46]:<46} {minutes_text(s.minutes_to_spo2_90, h):>12} "
+            f"{minutes_text(s.minutes_to_spo2_80, h):>9}"
+        )
+    i = oxy.inputs
+    lines += _wrap(
+        f"Inputs: FRC {i['frc_ml']:g} mL, O2 use {i['vo2_ml_per_min']:g} mL/min, cardiac output "
+        f"{i['cardiac_output_l_per_min']:g} L/min, blood volume {i['blood_volume_l']:g} L, "
+        f"Hb {i['haemoglobin_g_per_l']:g} g/L, shunt {100 * i['shunt']:.1f}%, "
+        f"P50 {i['p50_mmhg']:g} mmHg."
+    )
+    for a in oxy.assumptions:
+        lines += _wrap(a, "    ", "  - ")
+    lines += _wrap(oxy.uncertainty)
+    lines += _wrap("Basis: " + "; ".join(oxy.basis))
+    return lines
+
+
 def _equipment(plan: Plan) -> list[str]:
     e = plan.equipment
     t = e.tracheal_tube_mm
@@ -257,17 +287,22 @@ def _compact(plan: Plan) -> list[str]:
     if prep:
         lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
     lines += _not_assessed(plan)
-    lines += [
+    lines.append("")
+    lines += _wrap(
+        f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   SUPRAGLOTTIC size "
+        f"{e.supraglottic_size:g}   FRONT-OF-NECK {e.front_of_neck_tube_mm:.1f} mm",
+        "  ",
         "",
-        *_wrap(
-            f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   SUPRAGLOTTIC size "
-            f"{e.supraglottic_size:g}   FRONT-OF-NECK {e.front_of_neck_tube_mm:.1f} mm   first: "
-            f"{e.first_laryngoscope}",
-            "  ",
-            "",
-        ),
-    ]
-    lines += ["", "DOSES (calculation aid: check and titrate)"]
+    )
+    lines += _wrap(f"first: {e.first_laryngoscope}")
+    oxy = plan.oxygenation
+    best = oxy.scenarios[-1]
+    lines += _wrap(
+        f"APNOEA: SpO2 90% in {minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)} "
+        "(model, not a guarantee); with high-flow nasal O2 "
+        f"{minutes_text(best.minutes_to_spo2_90, oxy.horizon_minutes)}"
+    )
+    lines.append("DOSES (calculation aid: check and titrate)")
     for dose in plan.doses:
         name = dose.label.split(" (")[0]
         scale = f"{SCALAR_LABEL[dose.scalar].split()[0]} {dose.scalar_weight_kg:g} kg"
@@ -288,7 +323,7 @@ def _compact(plan: Plan) -> list[str]:
             "by urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
         )
     lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
-    lines += ["", "SEQUENCE"]
+    lines.append("SEQUENCE")
     shown = [s for s in plan.steps if s.id not in _COMPACT_SKIP]
     for n, step in enumerate(shown, 1):
         lines += _wrap(step.summary, "      ", f"  {n:>2}. ")
@@ -316,6 +351,7 @@ def render_text(plan: Plan, compact: bool = False) -> str:
             + _not_assessed(plan)
             + _preparation(plan)
             + _body(plan)
+            + oxygenation_lines(plan.oxygenation)
             + _equipment(plan)
             + _doses(plan)
             + _decision(plan)

@@ -1,0 +1,368 @@
+"""Time to desaturation during apnoea: a small compartment model.
+
+In the spirit of Farmery & Roe 1996: a lung gas compartment (the FRC, with its
+oxygen and nitrogen) exchanges oxygen with one mixed blood pool through the
+non-shunted part of the cardiac output; the body takes oxygen from the pool at
+the oxygen consumption rate; arterial saturation mixes end-capillary blood
+(Severinghaus's dissociation curve, P50 shifted in pregnancy) with shunted
+venous blood. During apnoea gas is drawn into the shrinking lung from the
+pharynx: room air without apnoeic oxygenation, oxygen-rich gas with nasal
+oxygen. Pure Python, fixed-step integration.
+
+Every constant sits beside its source or is marked as common practice, from
+memory, or a project calibration. The result is a model estimate with wide
+uncertainty, never a guarantee; the plan says so.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+
+from pydantic import BaseModel, ConfigDict
+
+from .assessment import Assessment
+from .sources import Evidence
+
+# Gas pressures (mmHg): sea-level barometric pressure, water vapour at 37 °C.
+BAROMETRIC_MMHG = 760.0  # common practice
+WATER_VAPOUR_MMHG = 47.0  # common practice
+PACO2_NON_PREGNANT_MMHG = 40.0  # common practice
+PACO2_PREGNANT_MMHG = 32.0  # Wise 2006 via physiology notes: 40 -> about 32 mmHg
+PACO2_RISE_MMHG_PER_MIN = 3.0  # rise during apnoea after the first minute; from memory
+
+# Haemoglobin: P50 and the Severinghaus 1979 curve (standard P50 26.8 mmHg).
+SEVERINGHAUS_P50_MMHG = 26.8
+P50_PREGNANT_MMHG = 30.0  # common practice: about 26.7 -> 30 mmHg at term
+HUFNER_ML_PER_G = 1.34  # O2 bound per gram of haemoglobin; from memory
+O2_SOLUBILITY_ML_PER_L_PER_MMHG = 0.03  # dissolved O2 in blood; common practice
+HB_NON_PREGNANT_G_PER_L = 135.0  # common practice (adult woman)
+HB_PREGNANT_G_PER_L = 115.0  # common practice (physiological anaemia at term)
+
+# Lung volume. Predicted upright FRC for women (ERS 1993, from memory):
+# 2.24 x height(m) - 0.001 x age - 1.00 L. Supine and anaesthetised it is
+# smaller; 0.7 of upright is a project calibration (from memory: supine about
+# -0.5 to -1 L, induction a further -0.4 L).
+FRC_SUPINE_ANAESTHETISED_FACTOR = 0.7
+FRC_PREGNANCY_FACTOR = 0.8  # FRC falls about 20% at term (common practice)
+# FRC falls exponentially with BMI (Jones & Nzekwu 2006, from memory of the
+# shape); rate per kg/m² above 25 is a project calibration.
+FRC_BMI_DECAY_PER_UNIT = 0.02
+FRC_BMI_REFERENCE = 25.0
+
+# Shunt fraction under anaesthesia; rises with BMI (project calibration).
+SHUNT_BASE = 0.05  # from memory: 5-10% under anaesthesia
+SHUNT_PER_BMI_UNIT = 0.004
+SHUNT_MAX = 0.25
+# Nasal oxygen reaches the glottis only through a patent upper airway, which
+# obese women often lose during apnoea: apnoeic oxygenation buys only minutes
+# at BMI 50 (ICSM simulator, BJA 2021: 1.8-8.5 min) but hours at BMI 24. The
+# glottic O2 fraction falls from the nasal value towards room air as
+# exp(-0.06 x (BMI - 25)): a project calibration.
+NASAL_PATENCY_DECAY_PER_BMI_UNIT = 0.06
+
+# Oxygen consumption. Brody's allometric rule VO2 = 10 x kg^0.75 mL/min (from
+# memory) gives about 240 mL/min at 70 kg, close to the 250 mL/min under
+# anaesthesia of Sirian & Wills 2009. Pregnancy +20-35% (Can J Cardiol 2021
+# review); +20% used because current weight already includes the gain.
+VO2_ML_PER_MIN_PER_KG075 = 10.0
+VO2_PREGNANCY_FACTOR = 1.20
+VO2_LABOUR_FACTOR = 1.23  # Eliasson 1992: first stage of labour +23% over term
+
+# Circulation. Cardiac output 5 L/min non-pregnant, +40% at term (common
+# practice, range +30-50%). Blood volume by Nadler 1962 (female, from memory),
+# +30% at term (common practice, range +30-50%).
+CARDIAC_OUTPUT_L_PER_MIN = 5.0
+# Cardiac output scales with body size like O2 consumption (common practice:
+# cardiac index), so the arteriovenous O2 difference stays near 50 mL/L.
+CARDIAC_OUTPUT_REFERENCE_KG = 70.0
+CARDIAC_OUTPUT_PREGNANCY_FACTOR = 1.4
+BLOOD_VOLUME_PREGNANCY_FACTOR = 1.3
+NADLER_FEMALE = (0.3561, 0.03308, 0.1833)  # L: a*H(m)^3 + b*W(kg) + c
+
+# Pharyngeal O2 fraction drawn into the lung during apnoea.
+FO2_ROOM_AIR = 0.21
+FO2_NASAL_LOW_FLOW = 0.5  # Pillai 2016: standard cannulae give 0.4-0.6 at the glottis
+FO2_NASAL_HIGH_FLOW = 1.0  # Pillai 2016: glottic FiO2 1.0
+
+FEO2_DEFAULT = 0.90  # target of pre-oxygenation (Tanoubi 2009; OAA/DAS 2015)
+FEO2_POOR = 0.70
+
+STEP_S = 1.0
+STEP_LONG_S = 5.0  # used while SaO2 is above STEP_LONG_ABOVE (time constant of the pool ~50 s)
+STEP_LONG_ABOVE = 0.97
+HORIZON_MIN = 20.0  # longer than this is reported as "more than 20 min"
+CURVE_EVERY_S = 10
+
+MODEL_EVIDENCE = (
+    Evidence("farmery1996", "from_memory", "compartment structure"),
+    Evidence("severinghaus1979", "published", "oxygen-haemoglobin dissociation curve"),
+    Evidence("eliasson1992", "published", "oxygen consumption +23% in the first stage"),
+    Evidence("mcclelland2008", "published", "check values: 292 s pregnant, 445 s not"),
+    Evidence("mcclelland2009", "published", "check value: labour with BMI 50, 98 s"),
+    Evidence("pillai2016", "published", "glottic O2 fraction with nasal oxygen"),
+)
+UNCERTAINTY = (
+    "A model estimate, not a guarantee: real times vary widely (McClelland 2008 "
+    "simulated 3:43-6:17 min for healthy term women); start rescue by the clinical "
+    "signs, never by the clock."
+)
+
+
+@dataclass(frozen=True)
+class Physiology:
+    """The model's inputs for one woman in one scenario."""
+
+    frc_ml: float
+    vo2_ml_per_min: float
+    cardiac_output_l_per_min: float
+    blood_volume_l: float
+    haemoglobin_g_per_l: float
+    shunt: float
+    p50_mmhg: float
+    paco2_mmhg: float
+    feo2: float = FEO2_DEFAULT
+    pharyngeal_fo2: float = FO2_ROOM_AIR
+
+
+def saturation(po2_mmhg: float, p50_mmhg: float = SEVERINGHAUS_P50_MMHG) -> float:
+    """Severinghaus 1979 saturation (0-1); P50 shifted by scaling the PO2."""
+    p = max(po2_mmhg, 0.0) * SEVERINGHAUS_P50_MMHG / p50_mmhg
+    return 1.0 / (23400.0 / (p**3 + 150.0 * p) + 1.0) if p > 0 else 0.0
+
+
+def predicted_frc_upright_ml(height_cm: float, age_years: float) -> float:
+    """Predicted upright FRC for women (ERS 1993 equation, from memory), in mL."""
+    return max(800.0, (2.24 * height_cm / 100.0 - 0.001 * age_years - 1.00) * 1000.0)
+
+
+def nadler_blood_volume_l(height_cm: float, weight_kg: float) -> float:
+    """Nadler 1962 blood volume for women (from memory), in litres."""
+    a, b, c = NADLER_FEMALE
+    return a * (height_cm / 100.0) ** 3 + b * weight_kg + c
+
+
+def physiology(
+    weight_kg: float,
+    height_cm: float,
+    age_years: float = 30.0,
+    pregnant: bool = True,
+    in_labour: bool = False,
+    haemoglobin_g_per_l: float | None = None,
+    feo2: float = FEO2_DEFAULT,
+    pharyngeal_fo2: float = FO2_ROOM_AIR,
+) -> Physiology:
+    """Derive the model's inputs from body size and the state of pregnancy."""
+    bmi = weight_kg / (height_cm / 100.0) ** 2
+    above = max(0.0, bmi - FRC_BMI_REFERENCE)
+    frc = predicted_frc_upright_ml(height_cm, age_years) * FRC_SUPINE_ANAESTHETISED_FACTOR
+    frc *= math.exp(-FRC_BMI_DECAY_PER_UNIT * above)
+    vo2 = VO2_ML_PER_MIN_PER_KG075 * weight_kg**0.75
+    q = CARDIAC_OUTPUT_L_PER_MIN * (weight_kg / CARDIAC_OUTPUT_REFERENCE_KG) ** 0.75
+    bv = nadler_blood_volume_l(height_cm, weight_kg)
+    if pregnant:
+        frc *= FRC_PREGNANCY_FACTOR
+        vo2 *= VO2_PREGNANCY_FACTOR
+        q *= CARDIAC_OUTPUT_PREGNANCY_FACTOR
+        bv *= BLOOD_VOLUME_PREGNANCY_FACTOR
+    if in_labour:
+        vo2 *= VO2_LABOUR_FACTOR
+    if pharyngeal_fo2 > FO2_ROOM_AIR:
+        patency = math.exp(-NASAL_PATENCY_DECAY_PER_BMI_UNIT * above)
+        pharyngeal_fo2 = FO2_ROOM_AIR + (pharyngeal_fo2 - FO2_ROOM_AIR) * patency
+    hb = haemoglobin_g_per_l or (HB_PREGNANT_G_PER_L if pregnant else HB_NON_PREGNANT_G_PER_L)
+    return Physiology(
+        frc_ml=frc,
+        vo2_ml_per_min=vo2,
+        cardiac_output_l_per_min=q,
+        blood_volume_l=bv,
+        haemoglobin_g_per_l=hb,
+        shunt=min(SHUNT_MAX, SHUNT_BASE + SHUNT_PER_BMI_UNIT * above),
+        p50_mmhg=P50_PREGNANT_MMHG if pregnant else SEVERINGHAUS_P50_MMHG,
+        paco2_mmhg=PACO2_PREGNANT_MMHG if pregnant else PACO2_NON_PREGNANT_MMHG,
+        feo2=feo2,
+        pharyngeal_fo2=pharyngeal_fo2,
+    )
+
+
+@dataclass(frozen=True)
+class Course:
+    """What the model predicts for one scenario."""
+
+    seconds_to_95: float | None  # None: not reached within the horizon
+    seconds_to_90: float | None
+    seconds_to_80: float | None
+    curve: tuple[tuple[int, float], ...]  # (seconds, SaO2 %)
+
+
+def simulate(p: Physiology, horizon_min: float = HORIZON_MIN) -> Course:
+    """Integrate apnoea from the end of pre-oxygenation."""
+    dry = BAROMETRIC_MMHG - WATER_VAPOUR_MMHG
+    hb_cap = HUFNER_ML_PER_G * p.haemoglobin_g_per_l  # mL O2 per L at full saturation
+    q = p.cardiac_output_l_per_min / 60.0  # L/s
+    vo2 = p.vo2_ml_per_min / 60.0  # mL/s
+    # Start: alveolar O2 fraction = end-tidal fraction; the rest of the dry gas is
+    # CO2 and nitrogen.
+    fco2 = p.paco2_mmhg / dry
+    v_o2 = p.feo2 * p.frc_ml
+    v_n2 = max(0.0, 1.0 - p.feo2 - fco2) * p.frc_ml
+    pao2 = (dry - p.paco2_mmhg) * v_o2 / (v_o2 + v_n2)
+    cc = hb_cap * saturation(pao2, p.p50_mmhg) + O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
+    # Steady state before apnoea: venous content = arterial content - VO2 / Q.
+    cv = 0.0
+    for _ in range(30):  # fixed point for Ca with shunt
+        ca = (1 - p.shunt) * cc + p.shunt * cv
+        cv = max(0.0, ca - vo2 / q)
+    pool = cv * p.blood_volume_l  # mL O2 held in the mixed pool
+    t95 = t90 = t80 = None
+    curve: list[tuple[int, float]] = []
+    horizon_s = horizon_min * 60.0
+    inflow_o2 = p.pharyngeal_fo2
+    shunt, bv, p50 = p.shunt, p.blood_volume_l, p.p50_mmhg
+    t = 0.0
+    next_point = 0.0
+    while t <= horizon_s:
+        paco2 = p.paco2_mmhg + PACO2_RISE_MMHG_PER_MIN * max(0.0, t / 60.0 - 1.0)
+        total = v_o2 + v_n2
+        pao2 = max(0.0, (dry - paco2) * v_o2 / total) if total > 0 else 0.0
+        sc = saturation(pao2, p50)
+        cc = hb_cap * sc + O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
+        cv = pool / bv
+        sao2 = (1 - shunt) * sc + shunt * min(1.0, cv / hb_cap)
+        if t >= next_point:
+            curve.append((int(t), round(100 * sao2, 1)))
+            next_point += CURVE_EVERY_S
+        if t95 is None and sao2 < 0.95:
+            t95 = t
+        if t90 is None and sao2 < 0.90:
+            t90 = t
+        if sao2 < 0.80:
+            t80 = t
+            break
+        # Long steps while saturation is high and changes slowly, 1 s near the thresholds.
+        dt = STEP_LONG_S if sao2 > STEP_LONG_ABOVE else STEP_S
+        uptake = min(v_o2, max(0.0, q * (1 - shunt) * (cc - cv)) * dt)  # mL this step
+        # The lung shrinks by the uptake; the same volume is drawn in from the pharynx.
+        v_o2 += (inflow_o2 - 1.0) * uptake
+        v_n2 += (1.0 - inflow_o2) * uptake
+        pool = max(0.0, pool + uptake - vo2 * dt)
+        t += dt
+    return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=tuple(curve))
+
+
+class Scenario(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    id: str
+    label: str
+    end_tidal_o2: float
+    apnoeic_o2_fraction: float
+    minutes_to_spo2_90: float | None
+    minutes_to_spo2_80: float | None
+
+
+class Oxygenation(BaseModel):
+    """The plan's oxygenation section."""
+
+    model_config = ConfigDict(frozen=True)
+    minutes_to_spo2_90: float | None  # as assessed; None = more than the horizon
+    minutes_to_spo2_80: float | None
+    horizon_minutes: float
+    short: bool  # predicted time under SHORT_MINUTES: plan for it
+    scenarios: tuple[Scenario, ...]
+    curve: tuple[tuple[int, float], ...]  # as assessed: (seconds, SaO2 %)
+    inputs: dict[str, float]
+    assumptions: tuple[str, ...]
+    uncertainty: str
+    basis: tuple[str, ...]
+
+
+SHORT_MINUTES = 3.0  # project rule: below this, plan high-flow nasal O2 and fewer attempts
+
+
+def _minutes(seconds: float | None) -> float | None:
+    return None if seconds is None else round(seconds / 60.0, 1)
+
+
+def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxygenation:
+    """All scenarios for one assessment."""
+    pt = assessment.patient
+    assumptions = []
+    height = pt.height_cm
+    if height is None:
+        height = 160.0
+        assumptions.append("height not given: 160 cm assumed for lung volume")
+    if pt.age_years is None:
+        assumptions.append("age not given: 30 years assumed")
+    if pt.haemoglobin_g_per_l is None:
+        assumptions.append(f"haemoglobin not given: {HB_PREGNANT_G_PER_L:g} g/L assumed")
+    if pt.in_labour is None:
+        assumptions.append("labour status not given: not in labour assumed")
+    assumptions.append("supine, airway open to room air during apnoea unless nasal O2 is on")
+    assumptions.append(
+        "pre-eclampsia is not modelled (a published simulation found it "
+        "slowed desaturation; the estimate is not lengthened for it)"
+    )
+    args = (
+        pt.weight_kg,
+        height,
+        float(pt.age_years or 30),
+        True,
+        bool(pt.in_labour),
+        pt.haemoglobin_g_per_l,
+    )
+    base = physiology(*args, feo2)
+    cases = (
+        ("as_assessed", f"pre-oxygenated to end-tidal O2 {feo2:g}", base),
+        (
+            "poor_preoxygenation",
+            f"poor pre-oxygenation (end-tidal O2 {FEO2_POOR:g})",
+            replace(base, feo2=FEO2_POOR),
+        ),
+        (
+            "nasal_low_flow",
+            "plus low-flow nasal O2 through apnoea",
+            physiology(*args, feo2, FO2_NASAL_LOW_FLOW),
+        ),
+        (
+            "nasal_high_flow",
+            "plus high-flow nasal O2 through apnoea",
+            physiology(*args, feo2, FO2_NASAL_HIGH_FLOW),
+        ),
+    )
+    scenarios = []
+    curve: tuple[tuple[int, float], ...] = ()
+    for cid, label, phys in cases:
+        course = simulate(phys)
+        if cid == "as_assessed":
+            curve, first = course.curve, course
+        scenarios.append(
+            Scenario(
+                id=cid,
+                label=label,
+                end_tidal_o2=phys.feo2,
+                apnoeic_o2_fraction=phys.pharyngeal_fo2,
+                minutes_to_spo2_90=_minutes(course.seconds_to_90),
+                minutes_to_spo2_80=_minutes(course.seconds_to_80),
+            )
+        )
+    t90 = _minutes(first.seconds_to_90)
+    return Oxygenation(
+        minutes_to_spo2_90=t90,
+        minutes_to_spo2_80=_minutes(first.seconds_to_80),
+        horizon_minutes=HORIZON_MIN,
+        short=t90 is not None and t90 < SHORT_MINUTES,
+        scenarios=tuple(scenarios),
+        curve=curve,
+        inputs={
+            "frc_ml": round(base.frc_ml),
+            "vo2_ml_per_min": round(base.vo2_ml_per_min),
+            "cardiac_output_l_per_min": round(base.cardiac_output_l_per_min, 1),
+            "blood_volume_l": round(base.blood_volume_l, 2),
+            "haemoglobin_g_per_l": base.haemoglobin_g_per_l,
+            "shunt": round(base.shunt, 3),
+            "p50_mmhg": base.p50_mmhg,
+        },
+        assumptions=tuple(assumptions),
+        uncertainty=UNCERTAINTY,
+        basis=tuple(e.describe() for e in MODEL_EVIDENCE),
+    )
