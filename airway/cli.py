@@ -44,6 +44,15 @@ OutputOpt = Annotated[
     Path | None, typer.Option("--output", "-o", help="Write to this file instead of stdout.")
 ]
 ForceOpt = Annotated[bool, typer.Option("--force", help="Replace an existing output file.")]
+PdfOpt = Annotated[Path | None, typer.Option("--pdf", help="Also write the plan as a PDF file.")]
+
+
+class Paper(StrEnum):
+    A4 = "A4"
+    letter = "letter"
+
+
+PaperOpt = Annotated[Paper, typer.Option("--paper", help="PDF paper size.")]
 CatalogueOpt = Annotated[
     Path | None,
     typer.Option("--catalogue", help="The unit's equipment catalogue (TOML); default: shipped."),
@@ -75,6 +84,16 @@ def _render(plan: Plan, fmt: Format, compact: bool = False) -> str:
     from .render_text import render_text
 
     return render_text(plan, compact=compact)
+
+
+def _write_pdf(plan: Plan, pdf: Path | None, paper: Paper, force: bool) -> None:
+    if pdf is None:
+        return
+    from .output import write_atomic
+    from .render_pdf import render_plan_pdf
+
+    write_atomic(pdf, render_plan_pdf(plan, paper.value), force=force)
+    typer.echo(f"wrote {pdf}", err=True)
 
 
 def _emit(text: str, output: Path | None, force: bool) -> None:
@@ -119,6 +138,8 @@ def plan(
     output: OutputOpt = None,
     force: ForceOpt = False,
     catalogue: CatalogueOpt = None,
+    pdf: PdfOpt = None,
+    paper: PaperOpt = Paper.A4,
 ) -> None:
     """The plan for one assessment file.
 
@@ -134,7 +155,10 @@ def plan(
             assessment = parse_assessment(text, "built-in demo", "toml")
         else:
             assessment = read_assessment(file)  # type: ignore[arg-type]
-        _emit(_render(_plan_for(assessment, catalogue), fmt), output, force)
+        the_plan = _plan_for(assessment, catalogue)
+        _write_pdf(the_plan, pdf, paper, force)
+        if pdf is None or output is not None:
+            _emit(_render(the_plan, fmt), output, force)
 
 
 Flag = Annotated[bool | None, typer.Option(show_default=False)]
@@ -171,6 +195,8 @@ def quick(
     output: OutputOpt = None,
     force: ForceOpt = False,
     catalogue: CatalogueOpt = None,
+    pdf: PdfOpt = None,
+    paper: PaperOpt = Paper.A4,
 ) -> None:
     """The plan from a few flags, for the emergency: only --weight-kg is required.
 
@@ -201,7 +227,9 @@ def quick(
             urgency_category=category,
             anaesthetist=anaesthetist,
         )
-        _emit(_render(_plan_for(assessment, catalogue), fmt, compact=not full), output, force)
+        the_plan = _plan_for(assessment, catalogue)
+        _write_pdf(the_plan, pdf, paper, force)
+        _emit(_render(the_plan, fmt, compact=not full), output, force)
 
 
 @app.command()

@@ -23,7 +23,8 @@ FACTOR_LIST_EVIDENCE = Evidence("mushambi2015", "published", "factor list (Table
 GRADING_EVIDENCE = Evidence("mushambi2015", "from_memory", "direction of each grade")
 POINTS_EVIDENCE = Evidence("project", "project_rule", "points per grade and their sum")
 
-URGENCY_POINTS = {1: 2, 2: 1, 3: -1, 4: -2}
+# Urgency dominates: no other single factor should outweigh it (project rule).
+URGENCY_POINTS = {1: 4, 2: 2, 3: -3, 4: -4}
 URGENCY_TEXT = {
     1: "category 1: immediate threat to the life of the woman or fetus",
     2: "category 2: compromise, not immediately life-threatening",

@@ -103,9 +103,8 @@ MODEL_EVIDENCE = (
     Evidence("pillai2016", "published", "glottic O2 fraction with nasal oxygen"),
 )
 UNCERTAINTY = (
-    "A model estimate, not a guarantee: real times vary widely (McClelland 2008 "
-    "simulated 3:43-6:17 min for healthy term women); start rescue by the clinical "
-    "signs, never by the clock."
+    "Desaturation times are a model estimate, not a guarantee: real times vary widely; "
+    "act on the saturation, never the clock."
 )
 
 

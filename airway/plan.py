@@ -22,7 +22,7 @@ from .scoring import Risk, score
 from .sources import Evidence
 
 # Bumped whenever a weight, threshold, band, dose or step changes meaning.
-RULES_VERSION = "2026.12.1"
+RULES_VERSION = "2026.12.2"
 
 MAX_INTUBATION_ATTEMPTS = 2  # OAA/DAS 2015 (Mushambi), published
 INTUBATION_ATTEMPTS_EVIDENCE = Evidence(
@@ -64,9 +64,8 @@ CAUTION_REASSESS = (
 )
 CAUTION_DOSES = "Doses are a calculation aid: check every dose and titrate to effect."
 CAUTION_WEAK_TESTS = (
-    "Bedside tests predict poorly in pregnant women (Mallampati and upper lip bite "
-    "no better than chance in Hirmanpour 2014): a low level does not exclude a "
-    "difficult airway."
+    "Bedside tests predict poorly in pregnancy (Hirmanpour 2014): a low level does not "
+    "exclude a difficult airway."
 )
 
 

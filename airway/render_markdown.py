@@ -82,10 +82,10 @@ def render_markdown(plan: Plan) -> str:
     add("")
     add("| Scenario | To SpO2 90% | To SpO2 80% |")
     add("|---|---:|---:|")
-    for s in oxy.scenarios:
+    for sc in oxy.scenarios:
         add(
-            f"| {s.label} | {minutes_text(s.minutes_to_spo2_90, h)} | "
-            f"{minutes_text(s.minutes_to_spo2_80, h)} |"
+            f"| {sc.label} | {minutes_text(sc.minutes_to_spo2_90, h)} | "
+            f"{minutes_text(sc.minutes_to_spo2_80, h)} |"
         )
     add("")
     add(oxy.uncertainty + " Assumed: " + "; ".join(oxy.assumptions) + ".")

@@ -23,9 +23,9 @@ def runner() -> CliRunner:
     return CliRunner()
 
 
-def make(**sections: dict) -> Assessment:
+def make(**sections: object) -> Assessment:
     """An assessment from section dicts; weight 80 kg / height 165 cm unless given."""
-    data = {k: dict(v) for k, v in sections.items()}
+    data = {k: dict(v) if isinstance(v, dict) else v for k, v in sections.items()}
     patient = {"weight_kg": 80, "height_cm": 165}
     patient.update(data.pop("patient", {}))
     return assessment_from_mapping({"patient": patient, **data})
