@@ -14,6 +14,7 @@ from pydantic import BaseModel, ConfigDict
 from . import __version__
 from .assessment import Assessment
 from .body import BodySize, body_size
+from .checklists import Checklist, RenderedChecklist, for_plan, load_checklists
 from .decision import Decision, decide
 from .doses import Dose, compute_doses
 from .equipment import Catalogue, Equipment, choose_equipment, load_catalogue
@@ -106,6 +107,7 @@ class Plan(BaseModel):
     not_assessed: tuple[str, ...]
     warnings: tuple[str, ...]
     cautions: tuple[str, ...]
+    checklists: tuple[RenderedChecklist, ...] = ()
 
     def dose(self, drug: str) -> Dose:
         """The computed dose of one drug."""
@@ -361,12 +363,18 @@ def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[st
     return out
 
 
-def build_plan(assessment: Assessment, catalogue: Catalogue | None = None) -> Plan:
+def build_plan(
+    assessment: Assessment,
+    catalogue: Catalogue | None = None,
+    checklists: tuple[Checklist, ...] | None = None,
+) -> Plan:
     """Turn one assessment into a plan.
 
     Args:
         assessment: the validated assessment.
         catalogue: the unit's equipment catalogue; the shipped one when None.
+        checklists: the unit's checklists; the shipped ones when None. Those meant
+            for plans are filled in with her values.
 
     Returns:
         The plan: risk, body size, equipment, doses, decision, steps, cautions.
@@ -390,7 +398,7 @@ def build_plan(assessment: Assessment, catalogue: Catalogue | None = None) -> Pl
         CAUTION_WEAK_TESTS,
         oxygenation.uncertainty,
     )
-    return Plan(
+    plan = Plan(
         generated_by=GeneratedBy(tool="airway", version=__version__, rules_version=RULES_VERSION),
         input_sha256=assessment_digest(assessment),
         assessment=assessment,
@@ -406,3 +414,7 @@ def build_plan(assessment: Assessment, catalogue: Catalogue | None = None) -> Pl
         warnings=tuple(_warnings(assessment, body, doses)),
         cautions=cautions,
     )
+    if checklists is None:
+        checklists = load_checklists()
+    filled = tuple(for_plan(c, plan) for c in checklists if "plan" in c.meta.use)
+    return plan.model_copy(update={"checklists": filled})

@@ -159,6 +159,15 @@ def render_markdown(plan: Plan) -> str:
             add(f"   - {_esc(a)}")
         if s.basis:
             add(f"   - *Basis: {s.basis}*")
+    for checklist in plan.checklists:
+        add("")
+        add(f"## {_esc(checklist.title)}")
+        for section in checklist.sections:
+            add("")
+            add(f"### {_esc(section.title)}")
+            add("")
+            for item in section.items:
+                add(f"- {'[ ] ' if item.checkbox else ''}{_esc(item.text)}")
     if plan.warnings:
         add("")
         add("## Check")

@@ -32,6 +32,7 @@ from reportlab.platypus import (
     TableStyle,
 )
 
+from .checklists import RenderedChecklist
 from .errors import AirwayError
 from .plan import Plan
 from .render_text import dose_text, minutes_text, per_kg_text, weight_text
@@ -211,6 +212,30 @@ def _pair(left: object, right: object, width: float, split: float = 0.5) -> Tabl
     return table
 
 
+def _checklist_block(
+    checklist: RenderedChecklist, width: float, st: dict[str, ParagraphStyle]
+) -> KeepTogether:
+    """A filled-in checklist in two columns of tick boxes."""
+    rows = []
+    for section in checklist.sections:
+        for item in section.items:
+            box = "☐" if item.checkbox else "•"
+            rows.append([box, _p(item.text, st["small"])])
+    cut = (len(rows) + 1) // 2
+    half = width / 2 - 3
+    widths = [half * 0.06, half * 0.94]
+    return KeepTogether(
+        [
+            _p(checklist.title, st["h2"]),
+            _pair(
+                _grid(rows[:cut], widths, header=False),
+                _grid(rows[cut:], widths, header=False),
+                width,
+            ),
+        ]
+    )
+
+
 def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
     r, e, dec, oxy = plan.risk, plan.equipment, plan.decision, plan.oxygenation
     t = e.tracheal_tube_mm
@@ -371,15 +396,25 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
     add(_pair(oxygen, decision, width))
     add(_p(extra + " ".join(dec.conditions), small))
     full = r.level == 4  # the highest level gets every action, on two pages at most
+    lists = {c.sheet: c for c in plan.checklists}
+    # The unit's brief and after-event checklists stand in for those steps when present,
+    # so the printout says what the Markdown plan says.
+    skip = {"before induction"} if "brief" in lists else set()
+    if "after" in lists:
+        skip.add("after the event")
+    if "brief" in lists:
+        add(_checklist_block(lists["brief"], width, st))
     rows_all = []
     for number, step in enumerate(plan.steps, 1):
+        if step.phase in skip:
+            continue
         text = " ".join(step.actions) if full else step.summary
         rows_all.append(
             [str(number), _p(step.title, small), _p(text, small)]
             if full
             else [str(number), _p(text, small)]
         )
-    add(_p("Sequence, with her values", st["h2"]))
+    add(_p("If it goes wrong: the sequence, with her values", st["h2"]))
     if full:
         add(
             _grid(
@@ -396,6 +431,8 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
                 width,
             )
         )
+    if "after" in lists:
+        add(_checklist_block(lists["after"], width, st))
     tail = [f"<b>Check:</b> {escape(w)}" for w in plan.warnings]
     # The first two cautions head the page; the rest close it.
     tail.append("<b>Cautions:</b> " + escape(" ".join(plan.cautions[2:])))

@@ -248,6 +248,17 @@ def _steps(plan: Plan) -> list[str]:
     return lines
 
 
+def _checklists(plan: Plan) -> list[str]:
+    lines: list[str] = []
+    for checklist in plan.checklists:
+        lines += _heading(checklist.title)
+        for section in checklist.sections:
+            lines.append(f"  {section.title}")
+            for item in section.items:
+                lines += _wrap(item.text, "        ", "  [ ] " if item.checkbox else "    - ")
+    return lines
+
+
 def _warnings(plan: Plan) -> list[str]:
     if not plan.warnings:
         return []
@@ -356,6 +367,7 @@ def render_text(plan: Plan, compact: bool = False) -> str:
             + _doses(plan)
             + _decision(plan)
             + _steps(plan)
+            + _checklists(plan)
             + _warnings(plan)
             + _cautions(plan)
         )

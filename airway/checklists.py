@@ -1,0 +1,345 @@
+"""Checklists written in Markdown, for plans and trolley sheets.
+
+A checklist file is Markdown with TOML front matter::
+
+    ---
+    title = "Before induction: team brief"
+    use = ["plan"]            # "plan", "sheet" or both
+    sheet = "brief"           # which sheet or plan section it fills
+    paper = "A4"              # A4 or A3, for sheets
+    ---
+
+    # Roles
+    - [ ] Who calls for help is named
+    - [ ] Tube {{tube_first}} mm and {{tube_smallest}} mm open {when preeclampsia}
+
+Headings are sections; task-list items (``- [ ]``) are check items. An item
+may end with ``{when NAME}``, ``{when not NAME}`` or ``{when level >= N}`` to
+appear only when that holds for the plan, and may show a plan value with
+``{{NAME}}``. The names form the closed lists :data:`CONDITIONS` and
+:data:`VALUES`; anything else is an error naming the file and the line. On a
+generic trolley sheet conditions are not applied (every item shows) and values
+are not allowed.
+"""
+
+from __future__ import annotations
+
+import re
+import tomllib
+from collections.abc import Callable
+from importlib import resources
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from pydantic import BaseModel, ConfigDict, Field, ValidationError
+
+from .errors import ChecklistError
+
+if TYPE_CHECKING:
+    from .plan import Plan
+
+Cond = Callable[["Plan"], bool]
+
+CONDITIONS: dict[str, tuple[str, Cond]] = {
+    "preeclampsia": (
+        "pre-eclampsia of any severity",
+        lambda p: (
+            p.assessment.preeclampsia.status in ("without_severe_features", "with_severe_features")
+        ),
+    ),
+    "severe_preeclampsia": (
+        "pre-eclampsia with severe features",
+        lambda p: p.assessment.preeclampsia.status == "with_severe_features",
+    ),
+    "oedema_signs": ("any airway oedema sign", lambda p: bool(p.assessment.preeclampsia.signs)),
+    "large_breasts": ("large breasts noted", lambda p: bool(p.assessment.airway.large_breasts)),
+    "in_labour": ("in labour", lambda p: bool(p.assessment.patient.in_labour)),
+    "obese": ("BMI 30 or more", lambda p: p.body.bmi is not None and p.body.bmi >= 30),
+    "bmi_40": ("BMI 40 or more", lambda p: p.body.bmi is not None and p.body.bmi >= 40),
+    "short_apnoea": ("predicted time to SpO2 90% under 3 min", lambda p: p.oxygenation.short),
+    "category_1": ("category-1 urgency", lambda p: p.assessment.context.urgency_category == 1),
+    "previous_difficulty": (
+        "previous difficult or failed intubation",
+        lambda p: p.assessment.history.intubation in ("difficult", "failed"),
+    ),
+}
+
+Value = Callable[["Plan"], str]
+
+VALUES: dict[str, tuple[str, Value]] = {
+    "level": ("risk level 1-4", lambda p: str(p.risk.level)),
+    "level_label": ("risk level label", lambda p: p.risk.label),
+    "tube_first": (
+        "first tracheal tube, mm",
+        lambda p: f"{p.equipment.tracheal_tube_mm.first:.1f}",
+    ),
+    "tube_backup": (
+        "backup tracheal tube, mm",
+        lambda p: f"{p.equipment.tracheal_tube_mm.backup:.1f}",
+    ),
+    "tube_smallest": (
+        "smallest tracheal tube, mm",
+        lambda p: f"{p.equipment.tracheal_tube_mm.smallest:.1f}",
+    ),
+    "supraglottic_size": ("supraglottic size", lambda p: f"{p.equipment.supraglottic_size:g}"),
+    "front_of_neck_tube": (
+        "front-of-neck tube, mm",
+        lambda p: f"{p.equipment.front_of_neck_tube_mm:.1f}",
+    ),
+    "suxamethonium_mg": ("suxamethonium range, mg", lambda p: _mg(p, "suxamethonium")),
+    "rocuronium_mg": ("rocuronium range, mg", lambda p: _mg(p, "rocuronium")),
+    "sugammadex_mg": ("sugammadex dose, mg", lambda p: _mg(p, "sugammadex")),
+    "propofol_mg": ("propofol range, mg", lambda p: _mg(p, "propofol")),
+    "minutes_to_spo2_90": (
+        "predicted minutes to SpO2 90%",
+        lambda p: (
+            "more than 20"
+            if p.oxygenation.minutes_to_spo2_90 is None
+            else f"{p.oxygenation.minutes_to_spo2_90:g}"
+        ),
+    ),
+    "decision": (
+        "pre-made wake-or-proceed recommendation",
+        lambda p: _DECISION_WORDS[p.decision.recommendation],
+    ),
+}
+
+
+_DECISION_WORDS = {
+    "wake": "wake her",
+    "proceed": "proceed with surgery",
+    "balanced": "no lean either way, so the senior anaesthetist decides now",
+    "decide_on_the_day": "decide on the day, once the urgency is known",
+}
+
+
+def _mg(plan: Plan, drug: str) -> str:
+    d = plan.dose(drug)
+    return (
+        f"{d.dose_mg_low:g}"
+        if d.dose_mg_low == d.dose_mg_high
+        else (f"{d.dose_mg_low:g}-{d.dose_mg_high:g}")
+    )
+
+
+_WHEN = re.compile(r"\{when\s+(?P<body>[^{}]*)\}\s*$")
+_VALUE = re.compile(r"\{\{\s*(?P<name>[a-z0-9_]+)\s*\}\}")
+_LEVEL = re.compile(r"^level\s*>=\s*(?P<n>[1-4])$")
+
+
+class FrontMatter(BaseModel):
+    model_config = ConfigDict(frozen=True, extra="forbid")
+    title: str = Field(min_length=1)
+    use: tuple[str, ...] = ("sheet",)
+    sheet: str
+    paper: str = "A4"
+
+
+class Condition(BaseModel):
+    """A parsed ``{when ...}``: a name, negated or not, or a minimum level."""
+
+    model_config = ConfigDict(frozen=True)
+    name: str | None = None
+    negate: bool = False
+    min_level: int | None = None
+
+    def holds(self, plan: Plan) -> bool:
+        if self.min_level is not None:
+            return plan.risk.level >= self.min_level
+        result = CONDITIONS[self.name or ""][1](plan)
+        return not result if self.negate else result
+
+
+class Item(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    text: str  # with {{values}} still in place
+    line: int
+    condition: Condition | None = None
+    checkbox: bool = True
+
+
+class Section(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    title: str
+    line: int
+    items: tuple[Item, ...]
+
+
+class Checklist(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    path: str
+    meta: FrontMatter
+    sections: tuple[Section, ...]
+
+
+def _parser():  # type: ignore[no-untyped-def]
+    from markdown_it import MarkdownIt
+    from mdit_py_plugins.front_matter import front_matter_plugin
+
+    return MarkdownIt("commonmark", {"tasklists": True}).use(front_matter_plugin)
+
+
+def _condition(body: str, path: str, line: int) -> Condition:
+    body = " ".join(body.split())
+    level = _LEVEL.match(body)
+    if level:
+        return Condition(min_level=int(level["n"]))
+    negate = body.startswith("not ")
+    name = body[4:] if negate else body
+    if name not in CONDITIONS:
+        known = ", ".join(sorted(CONDITIONS)) + ", level >= N"
+        raise ChecklistError(path, line, f"unknown condition {name!r}; known: {known}")
+    return Condition(name=name, negate=negate)
+
+
+def _item(text: str, checked: bool | None, path: str, line: int) -> Item:
+    condition = None
+    match = _WHEN.search(text)
+    if match:
+        condition = _condition(match["body"], path, line)
+        text = text[: match.start()].rstrip()
+    for name in _VALUE.findall(text):
+        if name not in VALUES:
+            known = ", ".join(sorted(VALUES))
+            raise ChecklistError(path, line, f"unknown value {{{{{name}}}}}; known: {known}")
+    leftover = _VALUE.sub("", text)
+    if "{" in leftover or "}" in leftover:
+        raise ChecklistError(
+            path,
+            line,
+            "malformed braces: use {{name}} for a value and {when name} at the end of the item",
+        )
+    if not text:
+        raise ChecklistError(path, line, "empty item")
+    return Item(text=text, line=line, condition=condition, checkbox=checked is not None)
+
+
+def parse_checklist(text: str, path: str) -> Checklist:
+    """Parse one checklist file; every error names ``path`` and the line."""
+    tokens = _parser().parse(text)
+    meta: FrontMatter | None = None
+    sections: list[Section] = []
+    title: tuple[str, int] | None = None
+    items: list[Item] = []
+    depth = 0
+
+    def close() -> None:
+        if title is not None:
+            if not items:
+                raise ChecklistError(path, title[1], f"section {title[0]!r} has no items")
+            sections.append(Section(title=title[0], line=title[1], items=tuple(items)))
+
+    for i, tok in enumerate(tokens):
+        line = (tok.map[0] + 1) if tok.map else None
+        if tok.type == "front_matter":
+            try:
+                meta = FrontMatter.model_validate(tomllib.loads(tok.content))
+            except tomllib.TOMLDecodeError as exc:
+                raise ChecklistError(path, 2, f"front matter is not TOML: {exc}") from None
+            except ValidationError as exc:
+                err = exc.errors(include_url=False)[0]
+                where = ".".join(str(x) for x in err["loc"]) or "front matter"
+                raise ChecklistError(path, 2, f"front matter {where}: {err['msg']}") from None
+        elif tok.type == "heading_open":
+            close()
+            title, items = (tokens[i + 1].content.strip(), line or 0), []
+        elif tok.type == "list_item_open":
+            depth += 1
+            if depth > 1:
+                raise ChecklistError(path, line, "nested items are not supported")
+            inline = tokens[i + 2]
+            if title is None:
+                raise ChecklistError(path, line, "item before any heading")
+            items.append(_item(inline.content.strip(), tok.meta.get("checked"), path, line or 0))
+        elif tok.type == "list_item_close":
+            depth -= 1
+        elif tok.type == "paragraph_open" and depth == 0:
+            raise ChecklistError(path, line, "only headings and list items are allowed")
+    close()
+    if meta is None:
+        raise ChecklistError(path, 1, "missing front matter (--- title = ... ---)")
+    if not sections:
+        raise ChecklistError(path, None, "no sections")
+    if meta.paper not in ("A4", "A3"):
+        raise ChecklistError(path, 2, f"paper must be A4 or A3 (got {meta.paper!r})")
+    return Checklist(path=path, meta=meta, sections=tuple(sections))
+
+
+def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
+    """Every ``*.md`` in the unit's folder, with the shipped ones as the fallback.
+
+    A unit file replaces the shipped file of the same name; shipped files it
+    does not replace stay.
+    """
+    shipped = resources.files("airway").joinpath("data/checklists")
+    found: dict[str, tuple[str, str]] = {
+        f.name: (f"shipped checklist {f.name}", f.read_text("utf-8"))
+        for f in shipped.iterdir()
+        if f.name.endswith(".md")
+    }
+    if folder is not None:
+        if not folder.is_dir():
+            raise ChecklistError(str(folder), None, "not a folder")
+        for f in sorted(folder.glob("*.md")):
+            found[f.name] = (str(f), f.read_text("utf-8"))
+    return tuple(parse_checklist(text, name) for _key, (name, text) in sorted(found.items()))
+
+
+class RenderedItem(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    text: str
+    checkbox: bool
+
+
+class RenderedSection(BaseModel):
+    model_config = ConfigDict(frozen=True)
+    title: str
+    items: tuple[RenderedItem, ...]
+
+
+class RenderedChecklist(BaseModel):
+    """A checklist with conditions applied and values filled in for one plan."""
+
+    model_config = ConfigDict(frozen=True)
+    title: str
+    sheet: str
+    sections: tuple[RenderedSection, ...]
+
+
+def for_plan(checklist: Checklist, plan: Plan) -> RenderedChecklist:
+    """Apply conditions and fill values for one woman's plan."""
+    sections = []
+    for s in checklist.sections:
+        items = tuple(
+            RenderedItem(
+                text=_VALUE.sub(lambda m: VALUES[m["name"]][1](plan), i.text), checkbox=i.checkbox
+            )
+            for i in s.items
+            if i.condition is None or i.condition.holds(plan)
+        )
+        if items:
+            sections.append(RenderedSection(title=s.title, items=items))
+    return RenderedChecklist(
+        title=checklist.meta.title, sheet=checklist.meta.sheet, sections=tuple(sections)
+    )
+
+
+def generic(checklist: Checklist) -> RenderedChecklist:
+    """For a trolley sheet: every item shows; plan values are not allowed."""
+    for s in checklist.sections:
+        for i in s.items:
+            if _VALUE.search(i.text):
+                raise ChecklistError(
+                    checklist.path, i.line, "a trolley sheet is not for one patient: no {{values}}"
+                )
+    return RenderedChecklist(
+        title=checklist.meta.title,
+        sheet=checklist.meta.sheet,
+        sections=tuple(
+            RenderedSection(
+                title=s.title,
+                items=tuple(RenderedItem(text=i.text, checkbox=i.checkbox) for i in s.items),
+            )
+            for s in checklist.sections
+        ),
+    )
