@@ -29,7 +29,7 @@ import tomllib
 from collections.abc import Callable
 from importlib import resources
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
@@ -63,6 +63,14 @@ CONDITIONS: dict[str, tuple[str, Cond]] = {
         lambda p: p.assessment.history.intubation in ("difficult", "failed"),
     ),
 }
+
+_DECISION_WORDS = {
+    "wake": "wake her",
+    "proceed": "proceed with surgery",
+    "balanced": "no lean either way, so the senior anaesthetist decides now",
+    "decide_on_the_day": "decide on the day, once the urgency is known",
+}
+
 
 Value = Callable[["Plan"], str]
 
@@ -102,14 +110,6 @@ VALUES: dict[str, tuple[str, Value]] = {
         "pre-made wake-or-proceed recommendation",
         lambda p: _DECISION_WORDS[p.decision.recommendation],
     ),
-}
-
-
-_DECISION_WORDS = {
-    "wake": "wake her",
-    "proceed": "proceed with surgery",
-    "balanced": "no lean either way, so the senior anaesthetist decides now",
-    "decide_on_the_day": "decide on the day, once the urgency is known",
 }
 
 
@@ -172,7 +172,7 @@ class Checklist(BaseModel):
     sections: tuple[Section, ...]
 
 
-def _parser():  # type: ignore[no-untyped-def]
+def _parser() -> Any:
     from markdown_it import MarkdownIt
     from mdit_py_plugins.front_matter import front_matter_plugin
 

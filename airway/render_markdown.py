@@ -166,8 +166,8 @@ def render_markdown(plan: Plan) -> str:
             add("")
             add(f"### {_esc(section.title)}")
             add("")
-            for item in section.items:
-                add(f"- {'[ ] ' if item.checkbox else ''}{_esc(item.text)}")
+            for entry in section.items:
+                add(f"- {'[ ] ' if entry.checkbox else ''}{_esc(entry.text)}")
     if plan.warnings:
         add("")
         add("## Check")
