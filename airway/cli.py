@@ -22,7 +22,10 @@ from .errors import AirwayError
 
 if TYPE_CHECKING:
     from .assessment import Assessment
+    from .checklists import Checklist
+    from .equipment import Catalogue
     from .plan import Plan
+    from .units import UnitPaths
 
 app = typer.Typer(
     add_completion=False,
@@ -56,6 +59,12 @@ PaperOpt = Annotated[Paper, typer.Option("--paper", help="PDF paper size.")]
 CatalogueOpt = Annotated[
     Path | None,
     typer.Option("--catalogue", help="The unit's equipment catalogue (TOML); default: shipped."),
+]
+ChecklistsOpt = Annotated[
+    Path | None, typer.Option("--checklists", help="The unit's checklist folder (*.md).")
+]
+ConfigOpt = Annotated[
+    Path | None, typer.Option("--config", help="Unit config file (default: ./airway.toml).")
 ]
 
 
@@ -121,11 +130,32 @@ def main_callback(
     """Obstetric airway plans from one bedside assessment."""
 
 
-def _plan_for(assessment: Assessment, catalogue: Path | None) -> Plan:
+def _unit(
+    config: Path | None, catalogue: Path | None, checklists: Path | None
+) -> tuple[Catalogue, tuple[Checklist, ...], UnitPaths]:
+    """The unit's catalogue and checklists: flags, then config file, then shipped."""
+    from .checklists import load_checklists
     from .equipment import load_catalogue
+    from .units import load_unit_paths
+
+    paths = load_unit_paths(config)
+    return (
+        load_catalogue(catalogue or paths.catalogue),
+        load_checklists(checklists or paths.checklists),
+        paths,
+    )
+
+
+def _plan_for(
+    assessment: Assessment,
+    catalogue: Path | None,
+    checklists: Path | None = None,
+    config: Path | None = None,
+) -> Plan:
     from .plan import build_plan
 
-    return build_plan(assessment, load_catalogue(catalogue))
+    cat, lists, _paths = _unit(config, catalogue, checklists)
+    return build_plan(assessment, cat, lists)
 
 
 @app.command()
@@ -138,6 +168,8 @@ def plan(
     output: OutputOpt = None,
     force: ForceOpt = False,
     catalogue: CatalogueOpt = None,
+    checklists: ChecklistsOpt = None,
+    config: ConfigOpt = None,
     pdf: PdfOpt = None,
     paper: PaperOpt = Paper.A4,
 ) -> None:
@@ -155,7 +187,7 @@ def plan(
             assessment = parse_assessment(text, "built-in demo", "toml")
         else:
             assessment = read_assessment(file)  # type: ignore[arg-type]
-        the_plan = _plan_for(assessment, catalogue)
+        the_plan = _plan_for(assessment, catalogue, checklists, config)
         _write_pdf(the_plan, pdf, paper, force)
         if pdf is None or output is not None:
             _emit(_render(the_plan, fmt), output, force)
@@ -254,6 +286,48 @@ def oxygen(
         sys.stdout.write(json.dumps(oxy.model_dump(mode="json"), indent=2, sort_keys=True) + "\n")
     else:
         sys.stdout.write("\n".join(oxygenation_lines(oxy)[1:]) + "\n")
+
+
+class SheetKind(StrEnum):
+    contents = "contents"
+    sequence = "sequence"
+    doses = "doses"
+
+
+class SheetPaper(StrEnum):
+    A4 = "A4"
+    A3 = "A3"
+
+
+@app.command()
+def sheet(
+    kind: Annotated[SheetKind, typer.Argument(help="contents, sequence or doses.")],
+    output: Annotated[Path, typer.Option("--output", "-o", help="PDF file to write.")],
+    paper: Annotated[SheetPaper, typer.Option("--paper", help="A4 or A3.")] = SheetPaper.A4,
+    landscape: Annotated[bool, typer.Option("--landscape", help="Landscape page.")] = False,
+    force: ForceOpt = False,
+    catalogue: CatalogueOpt = None,
+    checklists: ChecklistsOpt = None,
+    contacts: Annotated[
+        Path | None, typer.Option("--contacts", help="The unit's contact list (TOML).")
+    ] = None,
+    config: ConfigOpt = None,
+) -> None:
+    """A generic laminated sheet for the difficult-airway trolley.
+
+    Example: airway sheet doses --paper A3 -o doses-A3.pdf
+    """
+    from .output import write_atomic
+    from .render_sheets import render_sheet_pdf
+    from .sheets import build_sheet
+    from .units import load_contacts
+
+    with _errors():
+        cat, lists, paths = _unit(config, catalogue, checklists)
+        people = load_contacts(contacts or paths.contacts)
+        content = build_sheet(kind.value, lists, cat, people)
+        write_atomic(output, render_sheet_pdf(content, paper.value, landscape), force=force)
+        typer.echo(f"wrote {output}", err=True)
 
 
 @app.command()

@@ -1,0 +1,269 @@
+"""Laminated trolley sheets as PDF: large type, high contrast, safe margins.
+
+Body text is 14 pt at A4 and scales with the paper (about 20 pt at A3). The
+palette is black on white with one dark blue and pale grey shading, readable
+in greyscale and without telling red from green. Nothing is drawn within
+15 mm of the edge, clear of a laminator's sealed border.
+"""
+
+from __future__ import annotations
+
+import io
+from collections.abc import Sequence
+from typing import Any
+from xml.sax.saxutils import escape
+
+from reportlab.lib import colors
+from reportlab.lib.pagesizes import A3, A4, landscape, portrait
+from reportlab.lib.styles import ParagraphStyle
+from reportlab.lib.units import mm
+from reportlab.platypus import (
+    BaseDocTemplate,
+    CondPageBreak,
+    Frame,
+    KeepTogether,
+    PageTemplate,
+    Paragraph,
+    Spacer,
+    Table,
+    TableStyle,
+)
+
+from . import __version__
+from .render_pdf import FONT, FONT_BOLD, _register_fonts
+from .sheets import BAND_HEIGHTS_CM, Sheet
+
+PAPERS = {"A4": A4, "A3": A3}
+SCALE = {"A4": 1.0, "A3": 1.41}  # A3 is A4 scaled by the square root of 2
+BODY_PT_A4 = 14.0
+SAFE_MARGIN_MM = 15.0  # everything inside; the test checks nothing within 10 mm
+NAVY = colors.HexColor("#1F3A5F")
+SHADE = colors.HexColor("#E6E6E6")
+
+
+def sheet_styles(paper: str) -> dict[str, ParagraphStyle]:
+    """Type sizes for a sheet on this paper."""
+    k = SCALE[paper]
+    body = ParagraphStyle(
+        "body",
+        fontName=FONT,
+        fontSize=BODY_PT_A4 * k,
+        leading=BODY_PT_A4 * k * 1.18,
+        textColor=colors.black,
+    )
+    return {
+        "body": body,
+        "title": ParagraphStyle(
+            "title",
+            parent=body,
+            fontName=FONT_BOLD,
+            fontSize=20 * k,
+            leading=24 * k,
+            textColor=colors.white,
+        ),
+        "h2": ParagraphStyle(
+            "h2",
+            parent=body,
+            fontName=FONT_BOLD,
+            fontSize=17 * k,
+            leading=19 * k,
+            spaceBefore=4 * k,
+            spaceAfter=1.5 * k,
+            textColor=NAVY,
+        ),
+        "cell": ParagraphStyle("cell", parent=body, fontName=FONT_BOLD),
+        "white": ParagraphStyle("white", parent=body, fontName=FONT_BOLD, textColor=colors.white),
+    }
+
+
+def _p(text: str, style: ParagraphStyle) -> Paragraph:
+    return Paragraph(escape(text), style)
+
+
+def _bar(text: str, width: float, st: dict[str, ParagraphStyle]) -> Table:
+    t = Table([[_p(text, st["title"])]], colWidths=[width])
+    t.setStyle(
+        TableStyle(
+            [
+                ("BACKGROUND", (0, 0), (-1, -1), NAVY),
+                ("FONTNAME", (0, 0), (-1, -1), FONT),
+                ("TOPPADDING", (0, 0), (-1, -1), 6),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
+            ]
+        )
+    )
+    return t
+
+
+def _table(
+    rows: Sequence[Sequence[object]],
+    widths: list[float],
+    k: float,
+    header: bool,
+    shade: bool = False,
+    heights: list[float | None] | None = None,
+) -> Table:
+    t = Table(rows, colWidths=widths, rowHeights=heights, repeatRows=1 if header else 0)
+    style = [
+        ("FONTNAME", (0, 0), (-1, -1), FONT),
+        ("FONTSIZE", (0, 0), (-1, -1), BODY_PT_A4 * k),
+        ("LEADING", (0, 0), (-1, -1), BODY_PT_A4 * k * 1.15),
+        ("VALIGN", (0, 0), (-1, -1), "MIDDLE"),
+        ("GRID", (0, 0), (-1, -1), 0.8, colors.black),
+        ("TOPPADDING", (0, 0), (-1, -1), 1.2 * k),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 2.8 * k),
+    ]
+    if header:
+        style += [
+            ("BACKGROUND", (0, 0), (-1, 0), NAVY),
+            ("TEXTCOLOR", (0, 0), (-1, 0), colors.white),
+            ("FONTNAME", (0, 0), (-1, 0), FONT_BOLD),
+        ]
+    if shade:
+        style.append(("ROWBACKGROUNDS", (0, 1), (-1, -1), [colors.white, SHADE]))
+    t.setStyle(TableStyle(style))
+    return t
+
+
+def _checklist(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) -> list:
+    out: list[object] = []
+    assert sheet.checklist is not None
+    for section in sheet.checklist.sections:
+        rows = [["☐" if i.checkbox else "•", _p(i.text, st["body"])] for i in section.items]
+        out.append(
+            KeepTogether(
+                [
+                    _p(section.title, st["h2"]),
+                    _table(rows, [12 * mm * k, width - 12 * mm * k], k, header=False),
+                ]
+            )
+        )
+    return out
+
+
+def _contacts(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) -> list:
+    if not sheet.contacts:
+        return []
+    rows: list[list[object]] = [["Who to call", "Number"]]
+    for c in sheet.contacts:
+        rows.append([_p(c.role, st["body"]), _p(c.number, st["cell"]) if c.number else ""])
+    return [
+        KeepTogether(
+            [
+                _p("Who to call", st["h2"]),
+                _table(rows, [width * 0.62, width * 0.38], k, header=True),
+            ]
+        )
+    ]
+
+
+def _month_grid(width: float, st: dict[str, ParagraphStyle], k: float) -> list:
+    parts: list[object] = [
+        CondPageBreak(55 * mm * k),
+        _p("Daily check: month ____________  year ______", st["h2"]),
+    ]
+    for days in (range(1, 17), range(17, 32)):
+        cols = len(days) + 1
+        first = 30 * mm * k
+        w = [first] + [(width - first) / (cols - 1)] * (cols - 1)
+        rows = [["Day", *[str(d) for d in days]], ["Initials", *[""] * len(days)]]
+        parts += [_table(rows, w, k, header=True, heights=[None, 8 * mm * k]), Spacer(0, 3 * mm)]
+    return parts
+
+
+def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) -> list:
+    h1, h2 = (f"{h:g}" for h in BAND_HEIGHTS_CM)
+    header = [
+        "Weight",
+        "Supra-\nglottic",
+        "Suxa-\nmethonium",
+        f"Rocuronium\n{h1} cm tall",
+        f"Rocuronium\n{h2} cm tall",
+        "Sugam-\nmadex",
+    ]
+    rows: list[Sequence[object]] = [header]
+    for r in sheet.bands:
+        roc = [
+            f"{lo:g}-{hi:g}{' L' if scalar == 'lean' else ''}"
+            for (lo, hi), scalar in zip(r.rocuronium_mg, r.rocuronium_scalar, strict=True)
+        ]
+        rows.append(
+            [
+                f"{r.weight_kg} kg",
+                f"size {r.supraglottic_size:g}",
+                f"{r.suxamethonium_mg[0]:g}-{r.suxamethonium_mg[1]:g}",
+                *roc,
+                f"{r.sugammadex_mg:g}",
+            ]
+        )
+    widths = [width * f for f in (0.13, 0.14, 0.19, 0.19, 0.19, 0.16)]
+    table = _table(rows, widths, k, header=True, shade=True)
+    table.setStyle(
+        TableStyle(
+            [("ALIGN", (1, 0), (-1, -1), "CENTER"), ("FONTNAME", (0, 1), (0, -1), FONT_BOLD)]
+        )
+    )
+    notes = [_p("Doses in mg. " + sheet.notes[0], st["body"])]
+    notes += [_p(n, st["body"]) for n in sheet.notes[1:]]
+    return [table, Spacer(0, 4 * mm), *notes]
+
+
+def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) -> bytes:
+    """One trolley sheet as PDF bytes."""
+    _register_fonts()
+    st = sheet_styles(paper)
+    k = SCALE[paper]
+    size = landscape(PAPERS[paper]) if landscape_ else portrait(PAPERS[paper])
+    margin = SAFE_MARGIN_MM * mm
+    buf = io.BytesIO()
+    doc = BaseDocTemplate(
+        buf,
+        pagesize=size,
+        leftMargin=margin,
+        rightMargin=margin,
+        topMargin=margin,
+        bottomMargin=margin + 6 * mm,
+        title=sheet.title,
+        author="airway",
+        creator=f"airway {__version__}",
+        invariant=1,
+        initialFontName=FONT,
+        lang="en-GB",
+    )
+    columns = 2 if landscape_ and sheet.kind != "doses" else 1
+    gap = 8 * mm
+    col_w = (doc.width - gap * (columns - 1)) / columns
+    frames = [
+        Frame(
+            doc.leftMargin + i * (col_w + gap),
+            doc.bottomMargin,
+            col_w,
+            doc.height,
+            leftPadding=0,
+            rightPadding=0,
+            topPadding=0,
+            bottomPadding=0,
+        )
+        for i in range(columns)
+    ]
+    footer = (
+        f"airway {__version__} · generic sheet, not for one patient · a decision aid: "
+        "local guidelines and clinical judgement come first"
+    )
+
+    def on_page(canvas: Any, doc_: Any) -> None:
+        canvas.setFont(FONT, 8 * k)
+        canvas.drawString(margin, margin, footer)
+        canvas.drawRightString(size[0] - margin, margin, f"page {doc_.page}")
+
+    doc.addPageTemplates([PageTemplate(id="sheet", frames=frames, onPage=on_page)])
+    story: list[object] = [_bar(sheet.title, col_w, st), Spacer(0, 3 * mm)]
+    if sheet.kind == "doses":
+        story += _bands(sheet, col_w, st, k)
+    else:
+        story += _checklist(sheet, col_w, st, k)
+        story += _contacts(sheet, col_w, st, k)
+        if sheet.month_grid:
+            story += _month_grid(col_w, st, k)
+    doc.build(story)
+    return buf.getvalue()

@@ -1,0 +1,139 @@
+"""Trolley sheets: same numbers as the engine, laminator-safe, large type."""
+
+from __future__ import annotations
+
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+
+from airway import build_plan
+from airway.checklists import load_checklists
+from airway.cli import app
+from airway.equipment import load_catalogue
+from airway.render_sheets import BODY_PT_A4, render_sheet_pdf, sheet_styles
+from airway.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
+from airway.units import load_contacts
+
+from .conftest import make
+
+
+def _sheet(kind: str):  # type: ignore[no-untyped-def]
+    return build_sheet(kind, load_checklists(), load_catalogue(), load_contacts())
+
+
+def test_weight_bands_50_to_160_in_10kg_rows() -> None:
+    assert tuple(range(50, 161, 10)) == BAND_WEIGHTS_KG
+
+
+@pytest.mark.parametrize("kg", BAND_WEIGHTS_KG)
+def test_weight_band_rows_equal_the_patient_plan(kg: int) -> None:
+    row = next(r for r in _sheet("doses").bands if r.weight_kg == kg)
+    no_height = build_plan(make(patient={"weight_kg": kg, "height_cm": None}), checklists=())
+    assert row.supraglottic_size == no_height.equipment.supraglottic_size
+    sux = no_height.dose("suxamethonium")
+    assert row.suxamethonium_mg == (sux.dose_mg_low, sux.dose_mg_high)
+    assert row.sugammadex_mg == no_height.dose("sugammadex").dose_mg_low == 16 * kg
+    for height, (lo, hi) in zip(BAND_HEIGHTS_CM, row.rocuronium_mg, strict=True):
+        p = build_plan(make(patient={"weight_kg": kg, "height_cm": height}), checklists=())
+        roc = p.dose("rocuronium")
+        assert (lo, hi) == (roc.dose_mg_low, roc.dose_mg_high)
+
+
+def test_dose_sheet_prints_the_rows(tmp_path: Path) -> None:
+    f = tmp_path / "d.pdf"
+    f.write_bytes(render_sheet_pdf(_sheet("doses")))
+    text = " ".join(PdfReader(f).pages[0].extract_text().split())
+    for row in _sheet("doses").bands:
+        assert f"{row.weight_kg} kg" in text and f"{row.sugammadex_mg:g}" in text
+        assert f"{row.suxamethonium_mg[0]:g}-{row.suxamethonium_mg[1]:g}" in text
+
+
+def test_body_text_at_least_14pt_at_a4() -> None:
+    assert sheet_styles("A4")["body"].fontSize >= 14 == BODY_PT_A4
+    assert sheet_styles("A3")["body"].fontSize > sheet_styles("A4")["body"].fontSize
+
+
+def _dark_pixels_near_edge(pgm: bytes, dpi: int, mm: float) -> tuple[int, int]:
+    """(dark pixels within ``mm`` of an edge, dark pixels in all) of a binary PGM."""
+    header, _, rest = pgm.partition(b"\n")
+    assert header == b"P5"
+    dims, _, rest = rest.partition(b"\n")
+    width, height = map(int, dims.split())
+    _maxval, _, pixels = rest.partition(b"\n")
+    band = int(mm / 25.4 * dpi) + 1
+    near = total = 0
+    for y in range(height):
+        line = pixels[y * width : (y + 1) * width]
+        dark = [x for x, v in enumerate(line) if v < 200]
+        total += len(dark)
+        if y < band or y >= height - band:
+            near += len(dark)
+        else:
+            near += sum(1 for x in dark if x < band or x >= width - band)
+    return near, total
+
+
+@pytest.mark.skipif(shutil.which("pdftoppm") is None, reason="poppler-utils not installed")
+@pytest.mark.parametrize("kind", SHEETS)
+@pytest.mark.parametrize(("paper", "landscape"), [("A4", False), ("A3", False), ("A4", True)])
+def test_sheet_png_not_blank_and_clear_of_laminator_edge(
+    kind: str, paper: str, landscape: bool, tmp_path: Path
+) -> None:
+    pdf = tmp_path / "s.pdf"
+    pdf.write_bytes(render_sheet_pdf(_sheet(kind), paper, landscape))
+    dpi = 40
+    subprocess.run(
+        ["pdftoppm", "-r", str(dpi), "-gray", str(pdf), str(tmp_path / "pg")], check=True
+    )
+    pages = sorted(tmp_path.glob("pg*.pgm"))
+    assert pages
+    for page in pages:
+        near, _total = _dark_pixels_near_edge(page.read_bytes(), dpi, 10)
+        assert near == 0
+    _first_near, first_total = _dark_pixels_near_edge(pages[0].read_bytes(), dpi, 10)
+    assert first_total > 500  # something is printed
+
+
+def test_sheet_pages_and_sizes(tmp_path: Path) -> None:
+    for kind in SHEETS:
+        for paper, size in (("A4", (595.28, 841.89)), ("A3", (841.89, 1190.55))):
+            f = tmp_path / f"{kind}-{paper}.pdf"
+            f.write_bytes(render_sheet_pdf(_sheet(kind), paper))
+            reader = PdfReader(f)
+            assert len(reader.pages) == 1
+            box = reader.pages[0].mediabox
+            assert (float(box.width), float(box.height)) == pytest.approx(size, abs=0.1)
+
+
+def test_sheet_cli_force_and_unit_contacts(runner, tmp_path: Path) -> None:
+    contacts = tmp_path / "contacts.toml"
+    contacts.write_text('[[contact]]\nrole = "Airway lead"\nnumber = "bleep 1234"\n')
+    out = tmp_path / "seq.pdf"
+    args = ["sheet", "sequence", "-o", str(out), "--contacts", str(contacts)]
+    assert runner.invoke(app, args).exit_code == 0
+    assert "bleep 1234" in PdfReader(out).pages[0].extract_text()
+    assert runner.invoke(app, args).exit_code == 2
+    assert runner.invoke(app, [*args, "--force", "--paper", "A3"]).exit_code == 0
+
+
+def test_sheet_bad_checklist_folder_exit_2(runner, tmp_path: Path) -> None:
+    (tmp_path / "20-trolley-contents.md").write_text(
+        '---\ntitle = "T"\nsheet = "contents"\n---\n# Drawer\n\n- [ ] x {when nonsense}\n'
+    )
+    r = runner.invoke(
+        app, ["sheet", "contents", "-o", str(tmp_path / "c.pdf"), "--checklists", str(tmp_path)]
+    )
+    assert r.exit_code == 2 and "20-trolley-contents.md:7" in r.stderr
+
+
+def test_config_file_points_at_unit_files(runner, tmp_path: Path) -> None:
+    (tmp_path / "people.toml").write_text('[[contact]]\nrole = "Theatre lead"\nnumber = "42"\n')
+    (tmp_path / "airway.toml").write_text('contacts = "people.toml"\n')
+    out = tmp_path / "seq.pdf"
+    r = runner.invoke(
+        app, ["sheet", "sequence", "-o", str(out), "--config", str(tmp_path / "airway.toml")]
+    )
+    assert r.exit_code == 0 and "Theatre lead" in PdfReader(out).pages[0].extract_text()
