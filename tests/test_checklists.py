@@ -144,3 +144,13 @@ def test_markdown_plan_and_pdf_share_checklist_content(tmp_path: Path) -> None:
         for item in section.items:
             assert item.text in md
             assert " ".join(item.text.split()) in pdf
+
+
+def test_example_unit_folder_parses_and_applies() -> None:
+    from airway.units import load_contacts, load_unit_paths
+
+    root = Path(__file__).resolve().parent.parent / "checklists" / "example-unit"
+    paths = load_unit_paths(root / "airway.toml")
+    lists = {c.meta.sheet: c for c in load_checklists(paths.checklists)}
+    assert "example unit" in lists["after"].meta.title
+    assert load_contacts(paths.contacts)[0].number == "bleep 0000"
