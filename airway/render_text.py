@@ -117,12 +117,13 @@ def _not_assessed(plan: Plan) -> list[str]:
     return _wrap("Not assessed: " + ", ".join(plan.not_assessed) + ".", "  ", "  ")
 
 
-def _preparation(plan: Plan) -> list[str]:
-    if not plan.preparation:
+def _bullets(title: str, entries: tuple[str, ...]) -> list[str]:
+    """A heading and one wrapped bullet per entry; nothing when there are none."""
+    if not entries:
         return []
-    lines = _heading("Prepare because of")
-    for p in plan.preparation:
-        lines += _wrap(p, "    ", "  - ")
+    lines = _heading(title)
+    for entry in entries:
+        lines += _wrap(entry, "    ", "  - ")
     return lines
 
 
@@ -259,22 +260,6 @@ def _checklists(plan: Plan) -> list[str]:
     return lines
 
 
-def _warnings(plan: Plan) -> list[str]:
-    if not plan.warnings:
-        return []
-    lines = _heading("Check")
-    for w in plan.warnings:
-        lines += _wrap(w, "    ", "  - ")
-    return lines
-
-
-def _cautions(plan: Plan) -> list[str]:
-    lines = _heading("Cautions")
-    for c in plan.cautions:
-        lines += _wrap(c, "    ", "  - ")
-    return lines
-
-
 # Shown elsewhere on the one screen (doses) or not needed in the moment.
 _COMPACT_SKIP = ("antacid", "drugs", "after")
 
@@ -360,7 +345,7 @@ def render_text(plan: Plan, compact: bool = False) -> str:
         lines += (
             _risk(plan)
             + _not_assessed(plan)
-            + _preparation(plan)
+            + _bullets("Prepare because of", plan.preparation)
             + _body(plan)
             + oxygenation_lines(plan.oxygenation)
             + _equipment(plan)
@@ -368,7 +353,7 @@ def render_text(plan: Plan, compact: bool = False) -> str:
             + _decision(plan)
             + _steps(plan)
             + _checklists(plan)
-            + _warnings(plan)
-            + _cautions(plan)
+            + _bullets("Check", plan.warnings)
+            + _bullets("Cautions", plan.cautions)
         )
     return "\n".join(line.rstrip() for line in lines) + "\n"

@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 from pathlib import Path
+from typing import get_args
 
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from airway.assessment import OedemaSign
 from airway.body import body_size
 from airway.equipment import choose_equipment, choose_tubes, load_catalogue
 from airway.errors import CatalogueError
@@ -43,19 +45,7 @@ def test_oedema_gives_smaller_tubes() -> None:
 
 
 _STATUSES = st.sampled_from([None, "none", "without_severe_features", "with_severe_features"])
-_SIGNS = st.lists(
-    st.sampled_from(
-        [
-            "voice_change",
-            "stridor",
-            "facial_oedema",
-            "tongue_swelling",
-            "new_snoring",
-            "breathless_lying_flat",
-        ]
-    ),
-    max_size=3,
-)
+_SIGNS = st.lists(st.sampled_from(get_args(OedemaSign)), max_size=3)
 
 
 @settings(max_examples=100, deadline=None)
