@@ -165,9 +165,18 @@ class Context(_Model):
     )
 
 
+class Identity(_Model):
+    """Identifiers printed on the plan only when given; blank lines otherwise."""
+
+    name: str | None = Field(default=None, max_length=80)
+    record_number: str | None = Field(default=None, max_length=40)
+    date_of_birth: str | None = Field(default=None, max_length=20, description="As written")
+
+
 class Assessment(_Model):
     """One assessment of one woman."""
 
+    identity: Identity = Identity()
     patient: Patient
     airway: AirwayExam = AirwayExam()
     history: History = History()

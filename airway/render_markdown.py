@@ -29,6 +29,15 @@ def render_markdown(plan: Plan) -> str:
     title = "# Airway plan" + (f": {_esc(plan.assessment.label)}" if plan.assessment.label else "")
     add(title)
     add("")
+    who = plan.assessment.identity
+    ids = [
+        f"{k}: {_esc(v)}"
+        for k, v in (("Name", who.name), ("Record", who.record_number), ("Born", who.date_of_birth))
+        if v
+    ]
+    if ids:
+        add(" · ".join(ids))
+        add("")
     for c in plan.cautions[:2]:
         add(f"> {c}")
         add(">")

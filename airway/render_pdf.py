@@ -212,6 +212,18 @@ def _pair(left: object, right: object, width: float, split: float = 0.5) -> Tabl
     return table
 
 
+def _two_columns(rows: list[list[object]], width: float) -> Table:
+    """Rows of [marker, text] split over two columns (one when there is a single row)."""
+    half = width / 2 - 3
+    widths = [half * 0.06, half * 0.94]
+    cut = (len(rows) + 1) // 2
+    if len(rows) < 2:
+        return _grid(rows, [width * 0.03, width * 0.97], header=False)
+    return _pair(
+        _grid(rows[:cut], widths, header=False), _grid(rows[cut:], widths, header=False), width
+    )
+
+
 def _checklist_block(
     checklist: RenderedChecklist, width: float, st: dict[str, ParagraphStyle]
 ) -> KeepTogether:
@@ -221,19 +233,7 @@ def _checklist_block(
         for item in section.items:
             box = "☐" if item.checkbox else "•"
             rows.append([box, _p(item.text, st["small"])])
-    cut = (len(rows) + 1) // 2
-    half = width / 2 - 3
-    widths = [half * 0.06, half * 0.94]
-    return KeepTogether(
-        [
-            _p(checklist.title, st["h2"]),
-            _pair(
-                _grid(rows[:cut], widths, header=False),
-                _grid(rows[cut:], widths, header=False),
-                width,
-            ),
-        ]
-    )
+    return KeepTogether([_p(checklist.title, st["h2"]), _two_columns(rows, width)])
 
 
 def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
@@ -244,16 +244,18 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
     add = story.append
     label = plan.assessment.label
     add(_p("Airway plan" + (f": {label}" if label else ""), st["h1"]))
+    who = plan.assessment.identity
     add(
         _grid(
             [
                 [
-                    _p("Name: ________________________", st["body"]),
-                    _p("Record number: ______________", st["body"]),
-                    _p("Date: __________ Signed: __________", st["body"]),
+                    _p(f"Name: {who.name or '_' * 24}", st["body"]),
+                    _p(f"Record number: {who.record_number or '_' * 12}", st["body"]),
+                    _p(f"Born: {who.date_of_birth or '_' * 10}", st["body"]),
+                    _p("Signed: ____________", st["body"]),
                 ]
             ],
-            [width * 0.36, width * 0.3, width * 0.34],
+            [width * 0.34, width * 0.26, width * 0.18, width * 0.22],
             header=False,
         )
     )
@@ -422,15 +424,7 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
             )
         )
     else:
-        cut = (len(rows_all) + 1) // 2
-        widths = [half * 0.06, half * 0.94]
-        add(
-            _pair(
-                _grid(rows_all[:cut], widths, header=False),
-                _grid(rows_all[cut:], widths, header=False),
-                width,
-            )
-        )
+        add(_two_columns(rows_all, width))
     if "after" in lists:
         add(_checklist_block(lists["after"], width, st))
     tail = [f"<b>Check:</b> {escape(w)}" for w in plan.warnings]

@@ -76,8 +76,11 @@ def per_kg_text(d: Dose) -> str:
 def _header(plan: Plan) -> list[str]:
     g = plan.generated_by
     label = plan.assessment.label
+    who = plan.assessment.identity
+    ids = [v for v in (who.name, who.record_number, who.date_of_birth) if v]
     lines = [
         f"AIRWAY PLAN{' - ' + label if label else ''}",
+        *([" / ".join(ids)] if ids else []),
         f"{g.tool} {g.version}, rules {g.rules_version}, input {plan.input_sha256[:12]}",
     ]
     for caution in plan.cautions[:2]:

@@ -109,3 +109,25 @@ def test_rendered_page_not_blank(tmp_path: Path) -> None:
     (png,) = tmp_path.glob("pg*.pgm")
     data = png.read_bytes()
     assert data.count(b"\x00") + data.count(b"\x20") > 100  # dark pixels exist
+
+
+def test_identifiers_print_when_given_blank_lines_otherwise(tmp_path: Path) -> None:
+    given = make(identity={"name": "Ana Ñúñez-O'Brien", "record_number": "X-123"})
+    text = _text(render_plan_pdf(build_plan(given)), tmp_path)
+    assert "Ana Ñúñez-O'Brien" in text and "X-123" in text
+    blank = _text(render_plan_pdf(build_plan(make())), tmp_path)
+    assert "Name: ____" in blank and "Record number: ____" in blank
+
+
+def test_hostile_checklist_item_prints_verbatim(tmp_path: Path) -> None:
+    unit = tmp_path / "unit"
+    unit.mkdir()
+    (unit / "10-team-brief.md").write_text(
+        '---\ntitle = "Brief & <i>co</i>"\nuse = ["plan"]\nsheet = "brief"\n---\n'
+        "# Roles\n\n- [ ] Call <b>Dr O'Neil & Co</b> on 1234\n"
+    )
+    from airway.checklists import load_checklists
+
+    plan = build_plan(make(), checklists=load_checklists(unit))
+    text = _text(render_plan_pdf(plan), tmp_path)
+    assert "Call <b>Dr O'Neil & Co</b> on 1234" in text and "Brief & <i>co</i>" in text
