@@ -159,6 +159,10 @@ class Context(_Model):
     aspiration_risk: Grade3 | None = Field(
         default=None, description="Aspiration risk; derived from labour when absent"
     )
+    end_tidal_o2: Annotated[
+        float | None,
+        _num(0.5, 0.95, "fraction", "End-tidal O2 fraction expected after pre-oxygenation"),
+    ] = None
     regional_alternative: Literal["feasible", "difficult", "impossible"] | None = Field(
         default=None,
         description="Could the operation go ahead under regional or awake technique instead?",

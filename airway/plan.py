@@ -18,7 +18,7 @@ from .checklists import Checklist, RenderedChecklist, for_plan, load_checklists
 from .decision import Decision, decide
 from .doses import Dose, compute_doses
 from .equipment import Catalogue, Equipment, choose_equipment, load_catalogue
-from .oxygenation import Oxygenation, oxygenation_for
+from .oxygenation import FEO2_DEFAULT, Oxygenation, oxygenation_for
 from .scoring import Risk, score
 from .sources import Evidence
 
@@ -383,7 +383,8 @@ def build_plan(
     p = assessment.patient
     body = body_size(p.weight_kg, p.height_cm, p.booking_weight_kg)
     risk = score(assessment, body)
-    oxygenation = oxygenation_for(assessment)
+    expected = assessment.context.end_tidal_o2
+    oxygenation = oxygenation_for(assessment, feo2=FEO2_DEFAULT if expected is None else expected)
     equipment = choose_equipment(assessment, body, risk.level, catalogue, oxygenation.short)
     doses = compute_doses(body)
     decision = decide(assessment, body)

@@ -161,3 +161,20 @@ def test_plan_carries_oxygenation_and_uses_it() -> None:
 def test_oxygen_for_missing_height_states_assumption() -> None:
     o = oxygenation_for(make(patient={"height_cm": None}))
     assert any("height not given" in a for a in o.assumptions)
+
+
+def test_expected_end_tidal_o2_from_the_assessment_shortens_the_estimate() -> None:
+    good = build_plan(make(), checklists=()).oxygenation
+    poor = build_plan(make(context={"end_tidal_o2": 0.75}), checklists=()).oxygenation
+    assert good.scenarios[0].end_tidal_o2 == 0.9 and poor.scenarios[0].end_tidal_o2 == 0.75
+    assert poor.minutes_to_spo2_90 is not None and good.minutes_to_spo2_90 is not None
+    assert poor.minutes_to_spo2_90 < good.minutes_to_spo2_90
+
+
+def test_preoxygenation_step_states_the_technique() -> None:
+    """Common practice and published guidance (Tanoubi 2009; OAA/DAS 2015): 3 min of tidal
+    breathing at FiO2 1.0 or 8 vital-capacity breaths in 60 s, to end-tidal O2 0.9 or more."""
+    step = next(s for s in build_plan(make(), checklists=()).steps if s.id == "preoxygenate")
+    text = " ".join(step.actions)
+    assert "3 min of tidal breathing" in text and "8 vital-capacity breaths in 60 s" in text
+    assert "at least 0.9" in text

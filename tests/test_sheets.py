@@ -137,3 +137,15 @@ def test_config_file_points_at_unit_files(runner, tmp_path: Path) -> None:
         app, ["sheet", "sequence", "-o", str(out), "--config", str(tmp_path / "airway.toml")]
     )
     assert r.exit_code == 0 and "Theatre lead" in PdfReader(out).pages[0].extract_text()
+
+
+@pytest.mark.parametrize("kind", SHEETS)
+def test_sheets_reproducible_and_fonts_embedded(kind: str, tmp_path: Path) -> None:
+    a, b = render_sheet_pdf(_sheet(kind), "A3"), render_sheet_pdf(_sheet(kind), "A3")
+    assert a == b
+    f = tmp_path / "s.pdf"
+    f.write_bytes(a)
+    for page in PdfReader(f).pages:
+        for font in page["/Resources"]["/Font"].values():
+            descriptor = font.get_object()["/FontDescriptor"].get_object()
+            assert "/FontFile2" in descriptor
