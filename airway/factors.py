@@ -180,7 +180,7 @@ def _labour(a: Assessment, _b: BodySize) -> Reading:
     return _flag(a.patient.in_labour)
 
 
-_ROCKE_MEMORY = "relative risk against Mallampati I; the retrieved abstract stops before it"
+_ROCKE_MEMORY = "relative risk against Mallampati I; value quoted from memory, check the paper"
 
 CATALOGUE: tuple[Factor, ...] = (
     Factor(

@@ -14,11 +14,11 @@ from airway.sources import SOURCES, Evidence
 @pytest.mark.parametrize(
     ("factor_id", "ratio"),
     [
-        # Rocke 1992 (Anesthesiology 77:67), relative risk against Mallampati I: retrieved.
+        # Rocke 1992 (Anesthesiology 77:67), relative risk against Mallampati I: published.
         ("mallampati_2", 3.23),
         ("mallampati_3", 7.58),
         ("mallampati_4", 11.3),
-        # Rocke 1992, from memory (the retrieved abstract stops before them).
+        # Rocke 1992, values quoted from memory: check against the paper.
         ("short_neck", 5.01),
         ("receding_mandible", 9.71),
         ("protruding_incisors", 8.0),

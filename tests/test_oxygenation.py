@@ -23,7 +23,7 @@ from airway.oxygenation import (
 from .conftest import make
 
 # Reference woman for the simulation check values: 165 cm, 75 kg at term. The
-# papers' model patients' sizes are not in our notes; this size is our choice.
+# papers do not state their model patients' size here; this size is our choice.
 REF = {"weight_kg": 75.0, "height_cm": 165.0}
 # "Full" pre-oxygenation (end-tidal N2 below 1 kPa) taken as end-tidal O2 0.94.
 FULL = 0.94
