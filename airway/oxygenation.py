@@ -28,7 +28,7 @@ from .sources import Evidence
 BAROMETRIC_MMHG = 760.0  # common practice
 WATER_VAPOUR_MMHG = 47.0  # common practice
 PACO2_NON_PREGNANT_MMHG = 40.0  # common practice
-PACO2_PREGNANT_MMHG = 32.0  # Wise 2006 via physiology notes: 40 -> about 32 mmHg
+PACO2_PREGNANT_MMHG = 32.0  # Wise 2006: 40 -> about 32 mmHg at term
 PACO2_RISE_MMHG_PER_MIN = 3.0  # rise during apnoea after the first minute; from memory
 
 # Haemoglobin: P50 and the Severinghaus 1979 curve (standard P50 26.8 mmHg).
@@ -102,6 +102,34 @@ MODEL_EVIDENCE = (
     Evidence("mcclelland2009", "published", "check value: labour with BMI 50, 98 s"),
     Evidence("pillai2016", "published", "glottic O2 fraction with nasal oxygen"),
 )
+# Every constant above with its evidence; tests/test_factors.py checks the ids.
+CONSTANT_EVIDENCE: dict[str, Evidence] = {
+    "PACO2_PREGNANT_MMHG": Evidence("wise2006", "published"),
+    "PACO2_RISE_MMHG_PER_MIN": Evidence("common_practice", "from_memory"),
+    "P50_PREGNANT_MMHG": Evidence("common_practice", "common_practice"),
+    "HB_PREGNANT_G_PER_L": Evidence("common_practice", "common_practice"),
+    "predicted_frc_upright_ml": Evidence("quanjer1993", "from_memory"),
+    "FRC_SUPINE_ANAESTHETISED_FACTOR": Evidence("project", "project_rule", "calibration"),
+    "FRC_PREGNANCY_FACTOR": Evidence("common_practice", "common_practice", "about -20%"),
+    "FRC_BMI_DECAY_PER_UNIT": Evidence("jones2006", "from_memory", "shape; rate calibrated"),
+    "SHUNT_BASE": Evidence("common_practice", "from_memory", "5-10% under anaesthesia"),
+    "SHUNT_PER_BMI_UNIT": Evidence("project", "project_rule", "calibration"),
+    "VO2_ML_PER_MIN_PER_KG075": Evidence(
+        "brody1945", "from_memory", "about 250 mL/min at 70 kg (Sirian & Wills 2009)"
+    ),
+    "VO2_PREGNANCY_FACTOR": Evidence("common_practice", "common_practice", "+20-35%"),
+    "VO2_LABOUR_FACTOR": Evidence("eliasson1992", "published"),
+    "CARDIAC_OUTPUT_PREGNANCY_FACTOR": Evidence("common_practice", "common_practice"),
+    "NADLER_FEMALE": Evidence("nadler1962", "from_memory"),
+    "BLOOD_VOLUME_PREGNANCY_FACTOR": Evidence("common_practice", "common_practice"),
+    "FO2_NASAL_LOW_FLOW": Evidence("pillai2016", "published", "0.4-0.6 at the glottis"),
+    "FO2_NASAL_HIGH_FLOW": Evidence("pillai2016", "published"),
+    "NASAL_PATENCY_DECAY_PER_BMI_UNIT": Evidence(
+        "icsm2021", "project_rule", "direction published; rate calibrated"
+    ),
+    "FEO2_DEFAULT": Evidence("tanoubi2009", "published"),
+}
+
 UNCERTAINTY = (
     "Desaturation times are a model estimate, not a guarantee: real times vary widely; "
     "act on the saturation, never the clock."

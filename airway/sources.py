@@ -326,6 +326,48 @@ _ALL = [
         "modelling investigation. Anaesthesia 2016;71:1077-80.",
     ),
     Source(
+        "wise2006",
+        "Wise 2006",
+        "Wise RA, Polito AJ, Krishnan V. Respiratory physiologic changes in pregnancy. "
+        "Immunol Allergy Clin North Am 2006;26:1-12.",
+    ),
+    Source(
+        "quanjer1993",
+        "ERS 1993 (Quanjer)",
+        "Quanjer PH et al. Lung volumes and forced ventilatory flows. Eur Respir J "
+        "1993;6 Suppl 16:5-40 (predicted FRC for women).",
+    ),
+    Source(
+        "jones2006",
+        "Jones & Nzekwu 2006",
+        "Jones RL, Nzekwu MM. The effects of body mass index on lung volumes. "
+        "Chest 2006;130:827-33.",
+    ),
+    Source(
+        "brody1945",
+        "Brody 1945",
+        "Brody S. Bioenergetics and Growth. New York: Reinhold, 1945 (oxygen consumption "
+        "scaling with body mass to the power 0.75).",
+    ),
+    Source(
+        "sirian2009",
+        "Sirian & Wills 2009",
+        "Sirian R, Wills J. Physiology of apnoea and the benefits of preoxygenation. "
+        "Contin Educ Anaesth Crit Care Pain 2009;9:105-8.",
+    ),
+    Source(
+        "nadler1962",
+        "Nadler 1962",
+        "Nadler SB, Hidalgo JU, Bloch T. Prediction of blood volume in normal human adults. "
+        "Surgery 1962;51:224-32.",
+    ),
+    Source(
+        "icsm2021",
+        "ICSM simulator 2021",
+        "High-flow nasal oxygen in obese and pregnant patients: a computational modelling "
+        "study. Br J Anaesth 2021 (PMID 33549319; authors not listed here).",
+    ),
+    Source(
         "common_practice",
         "Common practice",
         "Usual practice in obstetric anaesthesia; no single published source.",

@@ -6,7 +6,7 @@ import math
 
 import pytest
 
-from airway import body, decision, doses, equipment, factors, plan, scoring
+from airway import body, decision, doses, equipment, factors, oxygenation, plan, scoring
 from airway.factors import BY_ID, CATALOGUE
 from airway.sources import SOURCES, Evidence
 
@@ -77,8 +77,9 @@ def test_ids_unique_and_weights_positive() -> None:
 
 
 def _all_evidence() -> list[Evidence]:
-    found = []
-    for module in (body, decision, doses, equipment, factors, plan, scoring):
+    found: list[Evidence] = []
+    found += list(oxygenation.CONSTANT_EVIDENCE.values())
+    for module in (body, decision, doses, equipment, factors, oxygenation, plan, scoring):
         for value in vars(module).values():
             if isinstance(value, Evidence):
                 found.append(value)
@@ -87,6 +88,11 @@ def _all_evidence() -> list[Evidence]:
         found += [d.dose_evidence, d.scalar_evidence, d.concentration_evidence]
         found += [Evidence(src, "published") for _s, src in d.alternatives_obese]
     return found
+
+
+def test_oxygenation_constants_all_have_evidence() -> None:
+    for name in oxygenation.CONSTANT_EVIDENCE:
+        assert hasattr(oxygenation, name), name
 
 
 def test_every_constant_has_a_registered_source() -> None:
