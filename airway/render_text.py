@@ -276,17 +276,20 @@ def _compact(plan: Plan) -> list[str]:
         f"  index {r.index:.2f} (ranks risk; not a probability)",
     ]
     if r.overrides:
-        lines.append("  forced to level 4 by: " + ", ".join(r.overrides))
-    present = [f for f in r.factors if f.present and f.role != "preparation"]
+        forcing = [f for f in r.factors if f.present and f.role == "override"]
+        lines += _wrap(
+            "forced to level 4 by: "
+            + "; ".join(f"{f.label} ({f.source_short}): {f.prepares}" for f in forcing)
+        )
+    present = [f for f in r.factors if f.present and f.role == "difficulty"]
     for f in present:
         lines += _factor_lines(f, detail=False)
-    if not present:
+    if not present and not r.overrides:
         lines.append("  no risk factor found among those assessed")
     prep = [f.label for f in r.factors if f.present and f.role == "preparation"]
     if prep:
         lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
     lines += _not_assessed(plan)
-    lines.append("")
     lines += _wrap(
         f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   SUPRAGLOTTIC size "
         f"{e.supraglottic_size:g}   FRONT-OF-NECK {e.front_of_neck_tube_mm:.1f} mm",
