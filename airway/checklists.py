@@ -24,6 +24,7 @@ are not allowed.
 
 from __future__ import annotations
 
+import functools
 import re
 import tomllib
 from collections.abc import Callable
@@ -265,24 +266,35 @@ def parse_checklist(text: str, path: str) -> Checklist:
     return Checklist(path=path, meta=meta, sections=tuple(sections))
 
 
+@functools.cache
+def _shipped_texts() -> tuple[tuple[str, tuple[str, str]], ...]:
+    # Package data does not change while the process runs; read it once.
+    shipped = resources.files("airway").joinpath("data/checklists")
+    return tuple(
+        (f.name, (f"shipped checklist {f.name}", f.read_text("utf-8")))
+        for f in sorted(shipped.iterdir(), key=lambda f: f.name)
+        if f.name.endswith(".md")
+    )
+
+
+@functools.cache
+def _parsed(text: str, name: str) -> Checklist:
+    return parse_checklist(text, name)
+
+
 def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
     """Every ``*.md`` in the unit's folder, with the shipped ones as the fallback.
 
     A unit file replaces the shipped file of the same name; shipped files it
     does not replace stay.
     """
-    shipped = resources.files("airway").joinpath("data/checklists")
-    found: dict[str, tuple[str, str]] = {
-        f.name: (f"shipped checklist {f.name}", f.read_text("utf-8"))
-        for f in shipped.iterdir()
-        if f.name.endswith(".md")
-    }
+    found: dict[str, tuple[str, str]] = dict(_shipped_texts())
     if folder is not None:
         if not folder.is_dir():
             raise ChecklistError(str(folder), None, "not a folder")
         for f in sorted(folder.glob("*.md")):
             found[f.name] = (str(f), f.read_text("utf-8"))
-    return tuple(parse_checklist(text, name) for _key, (name, text) in sorted(found.items()))
+    return tuple(_parsed(text, name) for _key, (name, text) in sorted(found.items()))
 
 
 class RenderedItem(BaseModel):

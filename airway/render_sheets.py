@@ -250,10 +250,12 @@ def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) 
         f"airway {__version__} · generic sheet, not for one patient · a decision aid: "
         "local guidelines and clinical judgement come first"
     )
+    footer2 = "Reassess the airway immediately before every induction."
 
     def on_page(canvas: Any, doc_: Any) -> None:
         canvas.setFont(FONT, 8 * k)
-        canvas.drawString(margin, margin, footer)
+        canvas.drawString(margin, margin + 10 * k, footer)
+        canvas.drawString(margin, margin, footer2)
         canvas.drawRightString(size[0] - margin, margin, f"page {doc_.page}")
 
     doc.addPageTemplates([PageTemplate(id="sheet", frames=frames, onPage=on_page)])
