@@ -65,13 +65,6 @@ CONDITIONS: dict[str, tuple[str, Cond]] = {
     ),
 }
 
-_DECISION_WORDS = {
-    "wake": "wake her",
-    "proceed": "proceed with surgery",
-    "balanced": "no lean either way, so the senior anaesthetist decides now",
-    "decide_on_the_day": "decide on the day, once the urgency is known",
-}
-
 
 Value = Callable[["Plan"], str]
 
@@ -109,7 +102,7 @@ VALUES: dict[str, tuple[str, Value]] = {
     ),
     "decision": (
         "pre-made wake-or-proceed recommendation",
-        lambda p: _DECISION_WORDS[p.decision.recommendation],
+        lambda p: p.decision.phrase,
     ),
 }
 

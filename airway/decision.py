@@ -35,6 +35,20 @@ ANAESTHETIST_POINTS = {"senior": 1, "intermediate": 0, "junior": -1}
 GRADE_POINTS = {"low": 1, "moderate": 0, "high": -1}  # surgery, aspiration
 ALTERNATIVE_POINTS = {"feasible": -1, "difficult": 0, "impossible": 1}
 
+# How each recommendation reads: a headline for a heading, a phrase inside a sentence.
+HEADLINE = {
+    "wake": "WAKE",
+    "proceed": "PROCEED",
+    "balanced": "BALANCED: the senior anaesthetist decides before induction",
+    "decide_on_the_day": "DECIDE ON THE DAY, once the urgency is known",
+}
+PHRASE = {
+    "wake": "wake her",
+    "proceed": "proceed with surgery",
+    "balanced": "no lean either way, so the senior anaesthetist decides now, before induction",
+    "decide_on_the_day": "decide on the day, once the urgency is known",
+}
+
 
 class DecisionFactor(BaseModel):
     model_config = ConfigDict(frozen=True)
@@ -50,6 +64,8 @@ class Decision(BaseModel):
 
     model_config = ConfigDict(frozen=True)
     recommendation: str  # "wake", "proceed", "balanced", "decide_on_the_day"
+    headline: str  # HEADLINE[recommendation]
+    phrase: str  # PHRASE[recommendation]
     total: int
     factors: tuple[DecisionFactor, ...]
     if_category: dict[str, str]  # when urgency is not yet known: category -> recommendation
@@ -158,6 +174,8 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
     factors = (urgency, *others)
     return Decision(
         recommendation=recommendation,
+        headline=HEADLINE[recommendation],
+        phrase=PHRASE[recommendation],
         total=sum(f.points for f in factors),
         factors=factors,
         if_category=if_category,

@@ -26,6 +26,9 @@ SCALAR_LABEL = {
 # Obesity, for the choice of scalar: WHO obese class I or above (BMI >= 30),
 # applied to the current weight (project rule: the airway is managed at term).
 OBESE_BMI = 30.0
+OBESE_EVIDENCE = Evidence(
+    "who_bmi", "published", "obese from BMI 30; using current weight is a project rule"
+)
 
 
 @dataclass(frozen=True)
@@ -163,6 +166,13 @@ class Dose(BaseModel):
     alternatives: tuple[Alternative, ...]
     basis: str
     note: str
+
+
+def dose_text(d: Dose) -> str:
+    """'95-142.5 mg (1.9-2.9 mL)' or '1520 mg (15.2 mL)'."""
+    if d.dose_mg_low == d.dose_mg_high:
+        return f"{d.dose_mg_low:g} mg ({d.volume_ml_low:g} mL)"
+    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
 
 
 def _weight(body: BodySize, scalar: Scalar) -> float | None:

@@ -41,6 +41,9 @@ FONA_EVIDENCE = Evidence(
 # BMI threshold is a project rule.
 SHORT_HANDLE_BMI = 40.0
 VIDEO_FIRST_LEVEL = 3  # project rule: videolaryngoscope as first device from level 3
+DEVICE_RULE_EVIDENCE = Evidence(
+    "project", "project_rule", "short handle from BMI 40; videolaryngoscope first from level 3"
+)
 
 
 class Band(BaseModel):

@@ -304,6 +304,7 @@ class Oxygenation(BaseModel):
 
 
 SHORT_MINUTES = 3.0  # project rule: below this, plan high-flow nasal O2 and fewer attempts
+SHORT_EVIDENCE = Evidence("project", "project_rule", "3 min threshold for a short apnoea time")
 
 
 def _minutes(seconds: float | None) -> float | None:

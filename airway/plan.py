@@ -16,7 +16,7 @@ from .assessment import Assessment
 from .body import BodySize, body_size
 from .checklists import Checklist, RenderedChecklist, for_plan, load_checklists
 from .decision import Decision, decide
-from .doses import Dose, compute_doses
+from .doses import Dose, compute_doses, dose_text
 from .equipment import Catalogue, Equipment, choose_equipment, load_catalogue
 from .oxygenation import FEO2_DEFAULT, Oxygenation, oxygenation_for
 from .scoring import Risk, score
@@ -55,6 +55,12 @@ PERIMORTEM_EVIDENCE = Evidence(
 IMPROBABLE_BMI = 70.0
 IMPROBABLE_AGE = (16, 50)
 IMPROBABLE_GESTATION_WEEKS = 42.0
+IMPROBABLE_EVIDENCE = Evidence(
+    "project",
+    "project_rule",
+    "warn above BMI 70 (edge of the lean-weight formula's data), "
+    "age outside 16-50, gestation beyond 42 weeks",
+)
 
 CAUTION_AID = (
     "This plan is a decision aid. It does not replace clinical judgement, local "
@@ -125,20 +131,6 @@ def assessment_digest(assessment: Assessment) -> str:
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
 
-def _range(d: Dose) -> str:
-    if d.dose_mg_low == d.dose_mg_high:
-        return f"{d.dose_mg_low:g} mg ({d.volume_ml_low:g} mL)"
-    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
-
-
-_DECISION_TEXT = {
-    "wake": "WAKE her",
-    "proceed": "PROCEED with surgery",
-    "balanced": "no lean either way: the senior anaesthetist decides now, before induction",
-    "decide_on_the_day": "decide on the day, once the urgency is known",
-}
-
-
 def _minutes_text(minutes: float | None, horizon: float) -> str:
     return f"more than {horizon:g} min" if minutes is None else f"about {minutes:g} min"
 
@@ -155,7 +147,7 @@ def _steps(
     tubes = eq.tracheal_tube_mm
     sux, roc, sgx = by["suxamethonium"], by["rocuronium"], by["sugammadex"]
     prop, thio = by["propofol"], by["thiopental"]
-    pre = _DECISION_TEXT[decision.recommendation]
+    pre = decision.phrase
     t90 = _minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)
     short_actions: tuple[str, ...] = ()
     if oxy.short:
@@ -220,9 +212,9 @@ def _steps(
             title="Drugs drawn up and labelled",
             summary="drugs drawn up (doses above), sugammadex if rocuronium",
             actions=(
-                f"Induction: propofol {_range(prop)} or thiopental {_range(thio)}.",
-                f"Block: suxamethonium {_range(sux)} or rocuronium {_range(roc)}.",
-                f"If rocuronium: sugammadex {_range(sgx)} drawn up and to hand.",
+                f"Induction: propofol {dose_text(prop)} or thiopental {dose_text(thio)}.",
+                f"Block: suxamethonium {dose_text(sux)} or rocuronium {dose_text(roc)}.",
+                f"If rocuronium: sugammadex {dose_text(sgx)} drawn up and to hand.",
                 "Vasopressor drawn up.",
             ),
         ),
@@ -302,7 +294,7 @@ def _steps(
             actions=(
                 f"Pre-made decision: {pre}.",
                 "Wake: keep oxygenating; if rocuronium was given, sugammadex "
-                f"{_range(sgx)}; then plan a regional or awake technique.",
+                f"{dose_text(sgx)}; then plan a regional or awake technique.",
                 "Proceed: continue on the supraglottic airway, maintain anaesthesia, "
                 "surgeon told, most experienced person holds the airway.",
                 *decision.conditions[:1],

@@ -2,16 +2,9 @@
 
 from __future__ import annotations
 
-from .doses import SCALAR_LABEL
+from .doses import SCALAR_LABEL, dose_text
 from .plan import Plan
-from .render_text import dose_text, minutes_text, per_kg_text, weight_text
-
-_DECISION = {
-    "wake": "**Wake** her",
-    "proceed": "**Proceed** with surgery",
-    "balanced": "**Balanced**: the senior anaesthetist decides before induction",
-    "decide_on_the_day": "**Decide on the day**, once the urgency is known",
-}
+from .render_text import minutes_text, per_kg_text, weight_text
 
 
 def _esc(text: str) -> str:
@@ -132,7 +125,7 @@ def render_markdown(plan: Plan) -> str:
     add("")
     add("## If intubation fails: decided before induction")
     add("")
-    add(f"Recommendation: {_DECISION[d.recommendation]}.")
+    add(f"Recommendation: **{d.headline}**.")
     add("")
     add("| Factor | Finding | Points | Points to |")
     add("|---|---|---:|---|")

@@ -33,9 +33,10 @@ from reportlab.platypus import (
 )
 
 from .checklists import RenderedChecklist
+from .doses import dose_text
 from .errors import AirwayError
 from .plan import Plan
-from .render_text import dose_text, minutes_text, per_kg_text, weight_text
+from .render_text import minutes_text, per_kg_text, weight_text
 
 PAPER = {"A4": A4, "letter": letter}
 FONT_DIRS = (
@@ -186,14 +187,6 @@ class _NumberedCanvas(Canvas):
             self.drawRightString(width - 15 * mm, 10 * mm, f"page {self._pageNumber} of {total}")
             super().showPage()
         super().save()
-
-
-_RECOMMENDATION = {
-    "wake": "WAKE",
-    "proceed": "PROCEED",
-    "balanced": "BALANCED: the senior anaesthetist decides before induction",
-    "decide_on_the_day": "DECIDE ON THE DAY, once the urgency is known",
-}
 
 
 def _pair(left: object, right: object, width: float, split: float = 0.5) -> Table:
@@ -390,7 +383,7 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
         else ""
     )
     decision = [
-        _p(f"If intubation fails: {_RECOMMENDATION[dec.recommendation]}", st["h2"]),
+        _p(f"If intubation fails: {dec.headline}", st["h2"]),
         _grid(dec_rows, [half * 0.4, half * 0.4, half * 0.2]),
         _p("Final decision, ticked before induction: ☐ wake  ☐ proceed", st["body"]),
         _p("Signed: ____________________", st["body"]),

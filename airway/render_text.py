@@ -11,7 +11,7 @@ from __future__ import annotations
 import textwrap
 
 from .body import BODY_FORMULA_WARNING
-from .doses import SCALAR_LABEL, Dose
+from .doses import SCALAR_LABEL, Dose, dose_text
 from .oxygenation import Oxygenation
 from .plan import Plan
 from .scoring import FactorResult
@@ -23,13 +23,6 @@ _KIND = {
     "likelihood_ratio": "LR+",
     "odds_ratio_per_unit": "OR/unit",
     "project_ratio": "ratio*",
-}
-
-_DECISION = {
-    "wake": "WAKE",
-    "proceed": "PROCEED",
-    "balanced": "BALANCED: senior decides before induction",
-    "decide_on_the_day": "DECIDE ON THE DAY (urgency not known)",
 }
 
 
@@ -54,13 +47,6 @@ def weight_text(f: FactorResult) -> str:
     if f.role == "preparation" or f.weight is None:
         return "preparation"
     return f"{_KIND[f.kind]} {f.weight:g}"
-
-
-def dose_text(d: Dose) -> str:
-    """'95-142.5 mg (1.9-2.9 mL)' or '1520 mg (15.2 mL)'."""
-    if d.dose_mg_low == d.dose_mg_high:
-        return f"{d.dose_mg_low:g} mg ({d.volume_ml_low:g} mL)"
-    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
 
 
 def per_kg_text(d: Dose) -> str:
@@ -221,7 +207,7 @@ def _doses(plan: Plan) -> list[str]:
 
 def _decision(plan: Plan) -> list[str]:
     d = plan.decision
-    lines = _heading(f"If intubation fails: {_DECISION[d.recommendation]}")
+    lines = _heading(f"If intubation fails: {d.headline}")
     for f in d.factors:
         sign = f"{f.points:+d}" if f.points_to != "unknown" else " ?"
         derived = " (derived)" if f.derived else ""
@@ -309,7 +295,7 @@ def _compact(plan: Plan) -> list[str]:
         name = dose.label.split(" (")[0]
         scale = f"{SCALAR_LABEL[dose.scalar].split()[0]} {dose.scalar_weight_kg:g} kg"
         lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
-    lines += ["", f"IF INTUBATION FAILS: {_DECISION[d.recommendation]}"]
+    lines += ["", f"IF INTUBATION FAILS: {d.headline}"]
     for direction in ("proceed", "wake", "neither", "unknown"):
         names = [
             f"{f.name.split(' (')[0].lower()} {f.points:+d}"

@@ -12,9 +12,9 @@ from pypdf import PdfReader
 
 from airway import build_plan, read_assessment
 from airway.cli import app
+from airway.doses import dose_text
 from airway.render_json import render_json
 from airway.render_pdf import render_plan_pdf
-from airway.render_text import dose_text
 
 from .conftest import EXAMPLES, make
 
