@@ -34,7 +34,14 @@ from typing import TYPE_CHECKING, Any
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
+from .doses import BY_NAME
 from .errors import ChecklistError
+from .guidance import (
+    CRICOID_ASLEEP_N,
+    CRICOID_AWAKE_N,
+    MAX_INTUBATION_ATTEMPTS,
+    MAX_SGA_ATTEMPTS,
+)
 
 if TYPE_CHECKING:
     from .plan import Plan
@@ -66,6 +73,25 @@ CONDITIONS: dict[str, tuple[str, Cond]] = {
 }
 
 
+# Values that do not depend on one woman: allowed on trolley sheets as well as plans.
+UNIT_VALUES: dict[str, tuple[str, Callable[[float], str]]] = {
+    "max_intubation_attempts": (
+        "intubation attempts at most (OAA/DAS 2015)",
+        lambda _f: str(MAX_INTUBATION_ATTEMPTS),
+    ),
+    "max_supraglottic_attempts": (
+        "supraglottic insertion attempts at most",
+        lambda _f: str(MAX_SGA_ATTEMPTS),
+    ),
+    "cricoid_awake_n": ("cricoid force awake, N", lambda _f: str(CRICOID_AWAKE_N)),
+    "cricoid_asleep_n": ("cricoid force asleep, N", lambda _f: str(CRICOID_ASLEEP_N)),
+    "sugammadex_mg_per_kg": (
+        "sugammadex immediate-reversal dose, mg/kg",
+        lambda _f: f"{BY_NAME['sugammadex'].mg_per_kg[0]:g}",
+    ),
+    "front_of_neck_tube": ("front-of-neck tube, mm (unit catalogue)", lambda f: f"{f:.1f}"),
+}
+
 Value = Callable[["Plan"], str]
 
 VALUES: dict[str, tuple[str, Value]] = {
@@ -84,10 +110,6 @@ VALUES: dict[str, tuple[str, Value]] = {
         lambda p: f"{p.equipment.tracheal_tube_mm.smallest:.1f}",
     ),
     "supraglottic_size": ("supraglottic size", lambda p: f"{p.equipment.supraglottic_size:g}"),
-    "front_of_neck_tube": (
-        "front-of-neck tube, mm",
-        lambda p: f"{p.equipment.front_of_neck_tube_mm:.1f}",
-    ),
     "suxamethonium_mg": ("suxamethonium range, mg", lambda p: _mg(p, "suxamethonium")),
     "rocuronium_mg": ("rocuronium range, mg", lambda p: _mg(p, "rocuronium")),
     "sugammadex_mg": ("sugammadex dose, mg", lambda p: _mg(p, "sugammadex")),
@@ -193,8 +215,8 @@ def _item(text: str, checked: bool | None, path: str, line: int) -> Item:
         condition = _condition(match["body"], path, line)
         text = text[: match.start()].rstrip()
     for name in _VALUE.findall(text):
-        if name not in VALUES:
-            known = ", ".join(sorted(VALUES))
+        if name not in VALUES and name not in UNIT_VALUES:
+            known = ", ".join(sorted({**VALUES, **UNIT_VALUES}))
             raise ChecklistError(path, line, f"unknown value {{{{{name}}}}}; known: {known}")
     leftover = _VALUE.sub("", text)
     if "{" in leftover or "}" in leftover:
@@ -311,13 +333,27 @@ class RenderedChecklist(BaseModel):
     sections: tuple[RenderedSection, ...]
 
 
+def _fill(text: str, plan: Plan | None, front_of_neck_tube_mm: float) -> str:
+    """Put values in place; plan values need a plan, unit values never do."""
+
+    def value(match: re.Match[str]) -> str:
+        name = match["name"]
+        if name in UNIT_VALUES:
+            return UNIT_VALUES[name][1](front_of_neck_tube_mm)
+        assert plan is not None  # generic() refuses plan values first
+        return VALUES[name][1](plan)
+
+    return _VALUE.sub(value, text)
+
+
 def for_plan(checklist: Checklist, plan: Plan) -> RenderedChecklist:
     """Apply conditions and fill values for one woman's plan."""
     sections = []
     for s in checklist.sections:
         items = tuple(
             RenderedItem(
-                text=_VALUE.sub(lambda m: VALUES[m["name"]][1](plan), i.text), checkbox=i.checkbox
+                text=_fill(i.text, plan, plan.equipment.front_of_neck_tube_mm),
+                checkbox=i.checkbox,
             )
             for i in s.items
             if i.condition is None or i.condition.holds(plan)
@@ -329,21 +365,30 @@ def for_plan(checklist: Checklist, plan: Plan) -> RenderedChecklist:
     )
 
 
-def generic(checklist: Checklist) -> RenderedChecklist:
-    """For a trolley sheet: every item shows; plan values are not allowed."""
+def generic(checklist: Checklist, front_of_neck_tube_mm: float) -> RenderedChecklist:
+    """For a trolley sheet: every item shows; only values not tied to one woman."""
     for s in checklist.sections:
         for i in s.items:
-            if _VALUE.search(i.text):
-                raise ChecklistError(
-                    checklist.path, i.line, "a trolley sheet is not for one patient: no {{values}}"
-                )
+            for name in _VALUE.findall(i.text):
+                if name not in UNIT_VALUES:
+                    raise ChecklistError(
+                        checklist.path,
+                        i.line,
+                        f"{{{{{name}}}}} belongs to one woman's plan; a trolley sheet can use "
+                        "only " + ", ".join(sorted(UNIT_VALUES)),
+                    )
     return RenderedChecklist(
         title=checklist.meta.title,
         sheet=checklist.meta.sheet,
         sections=tuple(
             RenderedSection(
                 title=s.title,
-                items=tuple(RenderedItem(text=i.text, checkbox=i.checkbox) for i in s.items),
+                items=tuple(
+                    RenderedItem(
+                        text=_fill(i.text, None, front_of_neck_tube_mm), checkbox=i.checkbox
+                    )
+                    for i in s.items
+                ),
             )
             for s in checklist.sections
         ),

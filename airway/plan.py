@@ -18,6 +18,14 @@ from .checklists import Checklist, RenderedChecklist, for_plan, load_checklists
 from .decision import Decision, decide
 from .doses import Dose, compute_doses, dose_text
 from .equipment import Catalogue, Equipment, choose_equipment, load_catalogue
+from .guidance import (
+    CRICOID_ASLEEP_N,
+    CRICOID_AWAKE_N,
+    CRICOID_EVIDENCE,
+    MAX_INTUBATION_ATTEMPTS,
+    MAX_SGA_ATTEMPTS,
+    SGA_ATTEMPTS_EVIDENCE,
+)
 from .oxygenation import FEO2_DEFAULT, Oxygenation, oxygenation_for
 from .scoring import Risk, score
 from .sources import Evidence
@@ -25,17 +33,6 @@ from .sources import Evidence
 # Bumped whenever a weight, threshold, band, dose or step changes meaning.
 RULES_VERSION = "2026.12.2"
 
-MAX_INTUBATION_ATTEMPTS = 2  # OAA/DAS 2015 (Mushambi), published
-INTUBATION_ATTEMPTS_EVIDENCE = Evidence(
-    "mushambi2015",
-    "published",
-    "at most two attempts; a third only by a more experienced anaesthetist (from memory)",
-)
-MAX_SGA_ATTEMPTS = 2  # OAA/DAS 2015 detail, from memory
-SGA_ATTEMPTS_EVIDENCE = Evidence("mushambi2015", "from_memory", "at most two insertion attempts")
-CRICOID_AWAKE_N = 10
-CRICOID_ASLEEP_N = 30
-CRICOID_EVIDENCE = Evidence("vanner1999", "from_memory", "also OAA/DAS 2015 and DAS 2015")
 PREOX_TARGET_FEO2 = 0.9
 PREOX_EVIDENCE = Evidence(
     "tanoubi2009", "published", "3 min tidal breathing or 8 vital-capacity breaths in 60 s"

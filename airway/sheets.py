@@ -91,7 +91,7 @@ def build_sheet(
     matching = [c for c in checklists if c.meta.sheet == kind and "sheet" in c.meta.use]
     if not matching:
         raise ChecklistError(kind, None, f"no checklist file has sheet = {kind!r}")
-    checklist = generic(matching[-1])
+    checklist = generic(matching[-1], catalogue.front_of_neck_tube_mm)
     return Sheet(
         kind=kind,
         title=checklist.title,

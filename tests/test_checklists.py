@@ -124,8 +124,16 @@ def test_unit_folder_overrides_by_name_and_keeps_the_rest(tmp_path: Path) -> Non
 
 
 def test_trolley_sheet_refuses_plan_values() -> None:
-    with pytest.raises(ChecklistError, match="not for one patient"):
-        generic(_parse("# S\n\n- [ ] tube {{tube_first}}\n"))
+    with pytest.raises(ChecklistError, match="belongs to one woman's plan"):
+        generic(_parse("# S\n\n- [ ] tube {{tube_first}}\n"), 6.0)
+
+
+def test_unit_values_fill_sheets_and_plans_from_the_guidance_constants() -> None:
+    """OAA/DAS 2015: at most two intubation attempts; front-of-neck tube from the catalogue."""
+    body = "# S\n\n- At most {{max_intubation_attempts}} attempts, tube {{front_of_neck_tube}} mm\n"
+    sheet = generic(_parse(body), 6.0)
+    assert sheet.sections[0].items[0].text == "At most 2 attempts, tube 6.0 mm"
+    assert _render(body) == ["At most 2 attempts, tube 6.0 mm"]
 
 
 def test_markdown_plan_and_pdf_share_checklist_content(tmp_path: Path) -> None:

@@ -6,7 +6,17 @@ import math
 
 import pytest
 
-from airway import body, decision, doses, equipment, factors, oxygenation, plan, scoring
+from airway import (
+    body,
+    decision,
+    doses,
+    equipment,
+    factors,
+    guidance,
+    oxygenation,
+    plan,
+    scoring,
+)
 from airway.factors import BY_ID, CATALOGUE
 from airway.sources import SOURCES, Evidence
 
@@ -79,7 +89,7 @@ def test_ids_unique_and_weights_positive() -> None:
 def _all_evidence() -> list[Evidence]:
     found: list[Evidence] = []
     found += list(oxygenation.CONSTANT_EVIDENCE.values())
-    for module in (body, decision, doses, equipment, factors, oxygenation, plan, scoring):
+    for module in (body, decision, doses, equipment, factors, guidance, oxygenation, plan, scoring):
         for value in vars(module).values():
             if isinstance(value, Evidence):
                 found.append(value)

@@ -8,7 +8,8 @@ import pytest
 
 from airway import build_plan, read_assessment
 from airway.decision import URGENCY_POINTS
-from airway.plan import CAUTION_AID, CAUTION_REASSESS, MAX_INTUBATION_ATTEMPTS
+from airway.guidance import MAX_INTUBATION_ATTEMPTS
+from airway.plan import CAUTION_AID, CAUTION_REASSESS
 from airway.render_json import render_json
 
 from .conftest import EXAMPLES, make
