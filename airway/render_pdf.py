@@ -37,6 +37,7 @@ from .doses import dose_text
 from .errors import AirwayError
 from .plan import Plan
 from .render_text import minutes_text, per_kg_text, weight_text
+from .sources import source_label
 
 PAPER = {"A4": A4, "letter": letter}
 FONT_DIRS = (
@@ -287,7 +288,7 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
                 _p(weight_text(f), small),
                 f"{f.contribution:.2f}",
                 _bar(f.contribution, largest, bar_w),
-                _p(f"{f.source_short} [{f.basis.replace('_', ' ')}]", small),
+                _p(source_label(f.source, f.basis, short=True), small),
             ]
         )
     if not present:
@@ -307,7 +308,7 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
         notes.append("<b>Not assessed:</b> " + escape(", ".join(plan.not_assessed)) + ".")
     notes += [
         f"<b>Prepare ({escape(f.label.lower())}):</b> {escape(f.prepares)} "
-        f"({escape(f.source_short)} [{f.basis.replace('_', ' ')}])."
+        f"({escape(source_label(f.source, f.basis, short=True))})."
         for f in r.factors
         if f.present and f.prepares and f.role == "preparation"
     ]

@@ -15,6 +15,7 @@ from .doses import SCALAR_LABEL, Dose, dose_text
 from .oxygenation import Oxygenation
 from .plan import Plan
 from .scoring import FactorResult
+from .sources import source_label
 
 WIDTH = 80
 
@@ -76,7 +77,7 @@ def _header(plan: Plan) -> list[str]:
 
 def _factor_lines(f: FactorResult, detail: bool) -> list[str]:
     name = f"{f.label} ({f.detail})" if detail and f.detail else f.label
-    src = f"{weight_text(f)}, {f.source_short} [{f.basis.replace('_', ' ')}]"
+    src = f"{weight_text(f)}, {source_label(f.source, f.basis, short=True)}"
     return _wrap(f"{name}; {src}", " " * 9, f"  +{f.contribution:5.2f}  ")
 
 
@@ -265,7 +266,7 @@ def _compact(plan: Plan) -> list[str]:
         forcing = [f for f in r.factors if f.present and f.role == "override"]
         lines += _wrap(
             "forced to level 4 by: "
-            + "; ".join(f"{f.label} ({f.source_short}): {f.prepares}" for f in forcing)
+            + "; ".join(f"{f.label}: {f.prepares}" for f in forcing)
         )
     present = [f for f in r.factors if f.present and f.role == "difficulty"]
     for f in present:

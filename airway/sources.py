@@ -52,9 +52,20 @@ class Evidence:
 
     def describe(self) -> str:
         """One line for a clinician: short citation and basis."""
-        src = SOURCES[self.source].short
-        text = f"{src} [{BASIS_LABEL[self.basis]}]"
+        text = source_label(self.source, self.basis)
         return f"{text}; {self.note}" if self.note else text
+
+
+# Pseudo-sources whose name already says what the basis says.
+_SELF_DESCRIBING = ("project", "common_practice")
+
+
+def source_label(source: str, basis: str, short: bool = False) -> str:
+    """'Rocke 1992 [published]', or just the basis for a rule or common practice."""
+    label = BASIS_LABEL[basis] if not short else basis.replace("_", " ")
+    if source in _SELF_DESCRIBING:
+        return label
+    return f"{SOURCES[source].short} [{label}]"
 
 
 _ALL = [
