@@ -30,7 +30,7 @@ import tomllib
 from collections.abc import Callable
 from importlib import resources
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
@@ -42,9 +42,7 @@ from .guidance import (
     MAX_INTUBATION_ATTEMPTS,
     MAX_SGA_ATTEMPTS,
 )
-
-if TYPE_CHECKING:
-    from .plan import Plan
+from .plan_model import Plan, RenderedChecklist, RenderedItem, RenderedSection
 
 Cond = Callable[["Plan"], bool]
 
@@ -310,27 +308,6 @@ def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
         for f in sorted(folder.glob("*.md")):
             found[f.name] = (str(f), f.read_text("utf-8"))
     return tuple(_parsed(text, name) for _key, (name, text) in sorted(found.items()))
-
-
-class RenderedItem(BaseModel):
-    model_config = ConfigDict(frozen=True)
-    text: str
-    checkbox: bool
-
-
-class RenderedSection(BaseModel):
-    model_config = ConfigDict(frozen=True)
-    title: str
-    items: tuple[RenderedItem, ...]
-
-
-class RenderedChecklist(BaseModel):
-    """A checklist with conditions applied and values filled in for one plan."""
-
-    model_config = ConfigDict(frozen=True)
-    title: str
-    sheet: str
-    sections: tuple[RenderedSection, ...]
 
 
 def _fill(text: str, plan: Plan | None, front_of_neck_tube_mm: float) -> str:

@@ -9,12 +9,10 @@ from __future__ import annotations
 import hashlib
 import json
 
-from pydantic import BaseModel, ConfigDict
-
 from . import __version__
 from .assessment import Assessment
 from .body import BodySize, body_size
-from .checklists import Checklist, RenderedChecklist, for_plan, load_checklists
+from .checklists import Checklist, for_plan, load_checklists
 from .decision import Decision, decide
 from .doses import Dose, compute_doses, dose_text
 from .equipment import Catalogue, Equipment, choose_equipment, load_catalogue
@@ -27,6 +25,7 @@ from .guidance import (
     SGA_ATTEMPTS_EVIDENCE,
 )
 from .oxygenation import FEO2_DEFAULT, Oxygenation, oxygenation_for
+from .plan_model import GeneratedBy, Plan, Step
 from .scoring import Risk, score
 from .sources import Evidence
 
@@ -71,50 +70,6 @@ CAUTION_WEAK_TESTS = (
     "Bedside tests predict poorly in pregnancy (Hirmanpour 2014): a low level does not "
     "exclude a difficult airway."
 )
-
-
-class Step(BaseModel):
-    """One step of the sequence, with the woman's values filled in."""
-
-    model_config = ConfigDict(frozen=True)
-    id: str
-    phase: str
-    title: str
-    actions: tuple[str, ...]
-    summary: str  # one line with the woman's values, for the one-screen view
-    basis: str = ""
-
-
-class GeneratedBy(BaseModel):
-    model_config = ConfigDict(frozen=True)
-    tool: str
-    version: str
-    rules_version: str
-
-
-class Plan(BaseModel):
-    """Everything a renderer shows. Renderers format; they never compute."""
-
-    model_config = ConfigDict(frozen=True)
-    generated_by: GeneratedBy
-    input_sha256: str
-    assessment: Assessment
-    risk: Risk
-    body: BodySize
-    equipment: Equipment
-    doses: tuple[Dose, ...]
-    decision: Decision
-    oxygenation: Oxygenation
-    steps: tuple[Step, ...]
-    preparation: tuple[str, ...]
-    not_assessed: tuple[str, ...]
-    warnings: tuple[str, ...]
-    cautions: tuple[str, ...]
-    checklists: tuple[RenderedChecklist, ...] = ()
-
-    def dose(self, drug: str) -> Dose:
-        """The computed dose of one drug."""
-        return next(d for d in self.doses if d.drug == drug)
 
 
 def assessment_digest(assessment: Assessment) -> str:

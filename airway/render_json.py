@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import json
 
-from .plan import Plan
+from .plan_model import Plan
 
 
 def render_json(plan: Plan) -> str:

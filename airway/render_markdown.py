@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from .doses import SCALAR_LABEL, dose_text
-from .plan import Plan
+from .plan_model import Plan
 from .render_text import minutes_text, per_kg_text, weight_text
 
 

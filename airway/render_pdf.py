@@ -32,10 +32,9 @@ from reportlab.platypus import (
     TableStyle,
 )
 
-from .checklists import RenderedChecklist
 from .doses import dose_text
 from .errors import AirwayError
-from .plan import Plan
+from .plan_model import Plan, RenderedChecklist
 from .render_text import minutes_text, per_kg_text, weight_text
 from .sources import source_label
 

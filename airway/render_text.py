@@ -13,7 +13,7 @@ import textwrap
 from .body import BODY_FORMULA_WARNING
 from .doses import SCALAR_LABEL, Dose, dose_text
 from .oxygenation import Oxygenation
-from .plan import Plan
+from .plan_model import Plan
 from .scoring import FactorResult
 from .sources import source_label
 
@@ -265,8 +265,7 @@ def _compact(plan: Plan) -> list[str]:
     if r.overrides:
         forcing = [f for f in r.factors if f.present and f.role == "override"]
         lines += _wrap(
-            "forced to level 4 by: "
-            + "; ".join(f"{f.label}: {f.prepares}" for f in forcing)
+            "forced to level 4 by: " + "; ".join(f"{f.label}: {f.prepares}" for f in forcing)
         )
     present = [f for f in r.factors if f.present and f.role == "difficulty"]
     for f in present:

@@ -1,0 +1,61 @@
+"""The package's internal imports run one way: no module imports one that imports it back."""
+
+from __future__ import annotations
+
+import ast
+from pathlib import Path
+
+PACKAGE = Path(__file__).resolve().parent.parent / "airway"
+
+
+def _graph() -> dict[str, set[str]]:
+    """Module -> the package modules it imports, anywhere in the file (type-only too)."""
+    graph: dict[str, set[str]] = {}
+    for path in PACKAGE.glob("*.py"):
+        name = path.stem
+        graph[name] = set()
+        for node in ast.walk(ast.parse(path.read_text("utf-8"))):
+            if isinstance(node, ast.ImportFrom) and node.level == 1:
+                if node.module:
+                    graph[name].add(node.module.split(".")[0])
+                else:  # from . import x
+                    graph[name].update(a.name for a in node.names)
+        graph[name].discard("__init__")
+    return graph
+
+
+def _cycle(graph: dict[str, set[str]]) -> list[str] | None:
+    state: dict[str, int] = {}
+    stack: list[str] = []
+
+    def visit(n: str) -> list[str] | None:
+        state[n] = 1
+        stack.append(n)
+        for m in sorted(graph.get(n, ())):
+            if state.get(m) == 1:
+                return [*stack[stack.index(m) :], m]
+            if m not in state and (found := visit(m)):
+                return found
+        stack.pop()
+        state[n] = 2
+        return None
+
+    for n in sorted(graph):
+        if n not in state and (found := visit(n)):
+            return found
+    return None
+
+
+def test_no_import_cycles_in_the_package() -> None:
+    cycle = _cycle(_graph())
+    assert cycle is None, " -> ".join(cycle or [])
+
+
+def test_cycle_finder_finds_a_planted_cycle() -> None:
+    assert _cycle({"a": {"b"}, "b": {"c"}, "c": {"a"}}) == ["a", "b", "c", "a"]
+
+
+def test_plan_and_checklists_one_way() -> None:
+    graph = _graph()
+    assert "checklists" in graph["plan"]
+    assert "plan" not in graph["checklists"]
