@@ -14,13 +14,14 @@ from pydantic import BaseModel, ConfigDict
 from .body import BodySize
 from .sources import Evidence
 
-Scalar = Literal["total", "lean", "ideal", "adjusted"]
+Scalar = Literal["total", "lean", "ideal", "adjusted", "boundary"]
 
 SCALAR_LABEL = {
     "total": "total body weight",
     "lean": "lean body weight",
     "ideal": "ideal body weight",
     "adjusted": "adjusted body weight",
+    "boundary": "BMI-30 weight for her height",
 }
 
 # Obesity, for the choice of scalar: WHO obese class I or above (BMI >= 30),
@@ -28,6 +29,19 @@ SCALAR_LABEL = {
 OBESE_BMI = 30.0
 OBESE_EVIDENCE = Evidence(
     "who_bmi", "published", "obese from BMI 30; using current weight is a project rule"
+)
+
+# Switching from total to lean weight at BMI 30 would make the dose fall as weight
+# rises (lean weight is about 58% of total weight there: 9270 / (8780 + 244 x 30)).
+# So a drug whose obese scalar is lighter than total weight is never dosed below its
+# dose at the boundary: the dosing weight is the larger of the scalar's weight and
+# her total weight at BMI 30 for her height. Below BMI 30 nothing changes; above it
+# the guideline's scalar is shown as an alternative. Continuous and non-decreasing
+# in weight at every height (tests/test_doses.py checks 45-170 kg).
+CONTINUITY_EVIDENCE = Evidence(
+    "project",
+    "project_rule",
+    "never below the dose at BMI 30 for her height, so a heavier woman never gets less",
 )
 
 
@@ -188,13 +202,47 @@ def _mg(mg_per_kg: float, kg: float) -> float:
     return round(mg_per_kg * kg, 1)
 
 
+def boundary_weight_kg(height_cm: float) -> float:
+    """Total weight (kg) at which a woman of this height reaches BMI 30."""
+    metres = height_cm / 100.0
+    return OBESE_BMI * metres * metres
+
+
+def _alternative(low: float, high: float, scalar: Scalar, kg: float, source: str) -> Alternative:
+    return Alternative(
+        scalar=scalar,
+        weight_kg=round(kg, 2),
+        dose_mg_low=_mg(low, kg),
+        dose_mg_high=_mg(high, kg),
+        source=source,
+    )
+
+
 def compute_dose(drug: Drug, body: BodySize) -> Dose:
-    """Dose range for one drug and one woman."""
+    """Dose range for one drug and one woman.
+
+    Continuous and non-decreasing in weight at any height: see
+    :data:`CONTINUITY_EVIDENCE`.
+    """
+    low, high = drug.mg_per_kg
     obese = body.bmi is not None and body.bmi >= OBESE_BMI
     wanted: Scalar = drug.scalar_obese if obese else drug.scalar_normal
     kg = _weight(body, wanted)
     scaled = kg is not None
     note = drug.note
+    alternatives: list[Alternative] = []
+    held = False
+    if obese and kg is not None and body.height_cm is not None and wanted != "total":
+        floor = boundary_weight_kg(body.height_cm)
+        if kg < floor:
+            alternatives.append(_alternative(low, high, wanted, kg, drug.scalar_evidence.source))
+            note = (
+                f"Held at the dose for BMI 30 at her height ({floor:.1f} kg): on "
+                f"{SCALAR_LABEL[wanted]} ({kg:.1f} kg) a heavier woman would get less than "
+                "a lighter one (project rule); the guideline's dose is shown as an "
+                "alternative. " + note
+            ).strip()
+            wanted, kg, held = "boundary", floor, True
     if body.bmi is None and drug.scalar_obese != "total":
         scaled = False
         note = (
@@ -205,22 +253,14 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
         wanted, kg = "total", body.weight_kg
     # Dose on the weight as shown, so mg/kg x shown weight checks exactly.
     kg = round(kg, 2)
-    low, high = drug.mg_per_kg
-    alternatives = []
     if obese:
         for scalar, source in drug.alternatives_obese:
             alt_kg = _weight(body, scalar)
             if alt_kg is not None:
-                alternatives.append(
-                    Alternative(
-                        scalar=scalar,
-                        weight_kg=alt_kg,
-                        dose_mg_low=_mg(low, alt_kg),
-                        dose_mg_high=_mg(high, alt_kg),
-                        source=source,
-                    )
-                )
+                alternatives.append(_alternative(low, high, scalar, alt_kg, source))
     evidence = (drug.dose_evidence, drug.scalar_evidence, drug.concentration_evidence)
+    if held:
+        evidence += (CONTINUITY_EVIDENCE,)
     basis = "; ".join(e.describe() for e in evidence)
     return Dose(
         drug=drug.name,

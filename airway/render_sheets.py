@@ -184,7 +184,7 @@ def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) 
     rows: list[Sequence[object]] = [header]
     for r in sheet.bands:
         roc = [
-            f"{lo:g}-{hi:g}{' L' if scalar == 'lean' else ''}"
+            f"{lo:g}-{hi:g}{' H' if scalar == 'boundary' else ''}"
             for (lo, hi), scalar in zip(r.rocuronium_mg, r.rocuronium_scalar, strict=True)
         ]
         rows.append(

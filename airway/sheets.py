@@ -79,10 +79,12 @@ def build_sheet(
             title="Rescue drug doses and supraglottic size by weight",
             bands=weight_band_rows(catalogue),
             notes=(
-                "Suxamethonium 1-1.5 mg/kg total weight; rocuronium 1-1.2 mg/kg on total weight, "
-                "or on lean weight (L) once BMI is 30 or more at that height, so the dose drops "
-                "where the scalar changes; sugammadex 16 mg/kg total weight for immediate "
-                "reversal. Same calculation as the patient plan.",
+                "Suxamethonium 1-1.5 mg/kg total weight; rocuronium 1-1.2 mg/kg total weight "
+                "below BMI 30 at that height, and from BMI 30 held at the dose for BMI 30 "
+                "(marked H) so that it never falls as weight rises (project rule; lean-weight "
+                "dosing per AAGBI/SOBA 2015 would give less, see her plan); sugammadex "
+                "16 mg/kg total weight for immediate reversal. Same calculation as the "
+                "patient plan.",
                 "Supraglottic sizes follow the unit's catalogue: makers' weight bands differ "
                 "and are not evidence-based.",
                 "A calculation aid: check every dose. Use her own plan when her height is known.",

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import itertools
 import shutil
 import subprocess
 from pathlib import Path
@@ -40,6 +41,18 @@ def test_weight_band_rows_equal_the_patient_plan(kg: int) -> None:
         p = build_plan(make(patient={"weight_kg": kg, "height_cm": height}), checklists=())
         roc = p.dose("rocuronium")
         assert (lo, hi) == (roc.dose_mg_low, roc.dose_mg_high)
+
+
+def test_dose_sheet_columns_never_fall_as_weight_rises() -> None:
+    """Every dose column is non-decreasing down the 50-160 kg rows, at both heights."""
+    bands = _sheet("doses").bands
+    columns = [
+        [r.suxamethonium_mg for r in bands],
+        [(r.sugammadex_mg,) for r in bands],
+        *([r.rocuronium_mg[i] for r in bands] for i in range(len(BAND_HEIGHTS_CM))),
+    ]
+    for column in columns:
+        assert all(b >= a for a, b in itertools.pairwise(column)), column
 
 
 def test_dose_sheet_prints_the_rows(tmp_path: Path) -> None:
