@@ -258,7 +258,11 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
             alt_kg = _weight(body, scalar)
             if alt_kg is not None:
                 alternatives.append(_alternative(low, high, scalar, alt_kg, source))
-    evidence = (drug.dose_evidence, drug.scalar_evidence, drug.concentration_evidence)
+    evidence: tuple[Evidence, ...] = (
+        drug.dose_evidence,
+        drug.scalar_evidence,
+        drug.concentration_evidence,
+    )
     if held:
         evidence += (CONTINUITY_EVIDENCE,)
     basis = "; ".join(e.describe() for e in evidence)
