@@ -10,8 +10,11 @@ A factor has one of three roles:
     intubation, a known difficult airway); adds nothing to the index because
     no published ratio exists;
 ``preparation``
-    changes what is prepared rather than how hard intubation is (large
-    breasts, labour, difficult mask ventilation...); adds nothing to the index.
+    changes what is prepared rather than how hard intubation is (labour,
+    difficult mask ventilation...); adds nothing to the index.
+
+A difficulty factor may also change the preparation (large breasts: a
+short-handled laryngoscope; pre-eclampsia: smaller tubes).
 
 To add a factor: append a :class:`Factor` to :data:`CATALOGUE` with a reader
 that returns ``None`` when the finding was not assessed, and a source id from
@@ -48,7 +51,11 @@ MOUTH_OPENING_SMALL_CM = 4.0  # El-Ganzouri 1996 and handbook tables
 NECK_CIRCUMFERENCE_LARGE_CM = 43.0  # handbook table, obese cohorts
 BMI_REFERENCE = 25.0  # project rule: per-unit odds counted above the top of WHO normal
 AGE_REFERENCE_YEARS = 35  # McKeen 2011 found age >= 35 predictive; per-year odds above it
-PLATELETS_LOW_10E9 = 70.0  # SOAP 2021 consensus threshold for neuraxial block, from memory
+PLATELETS_LOW_10E9 = 70.0
+# Project rule, no published ratio: breasts hinder the laryngoscope's insertion more
+# than they narrow the view, and a short handle largely offsets them, so they weigh
+# less than Mallampati 2 (3.23) and as much as pre-eclampsia without severe features.
+LARGE_BREASTS_RATIO = 1.5  # SOAP 2021 consensus threshold for neuraxial block, from memory
 
 
 @dataclass(frozen=True)
@@ -417,13 +424,15 @@ CATALOGUE: tuple[Factor, ...] = (
     Factor(
         "large_breasts",
         "Large breasts",
-        "preparation",
-        "rule",
-        None,
+        "difficulty",
+        "project_ratio",
+        LARGE_BREASTS_RATIO,
         Evidence(
-            "datta1981",
-            "from_memory",
-            "short-handled laryngoscope designed for this (Khan 2014 review)",
+            "project",
+            "project_rule",
+            "no published ratio; enlarged breasts get in the way of the laryngoscope "
+            "handle (Khan 2014), the reason the short-handled laryngoscope was made "
+            "(Datta 1981)",
         ),
         lambda a, _b: _flag(a.airway.large_breasts),
         prepares="short-handled laryngoscope; ramp; assistant retracts breasts "

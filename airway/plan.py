@@ -30,7 +30,7 @@ from .scoring import Risk, score
 from .sources import Evidence
 
 # Bumped whenever a weight, threshold, band, dose or step changes meaning.
-RULES_VERSION = "2026.12.2"
+RULES_VERSION = "2026.12.3"
 
 PREOX_TARGET_FEO2 = 0.9
 PREOX_EVIDENCE = Evidence(

@@ -272,7 +272,7 @@ def _compact(plan: Plan) -> list[str]:
         lines += _factor_lines(f, detail=False)
     if not present and not r.overrides:
         lines.append("  no risk factor found among those assessed")
-    prep = [f.label for f in r.factors if f.present and f.role == "preparation"]
+    prep = [f.label for f in r.factors if f.present and f.prepares and f.role != "override"]
     if prep:
         lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
     lines += _not_assessed(plan)

@@ -72,11 +72,19 @@ def test_overrides_are_the_three_named_rules() -> None:
 
 
 def test_preparation_factors_change_preparation_not_index() -> None:
-    for fid in ("large_breasts", "in_labour"):
-        f = BY_ID[fid]
-        assert f.role == "preparation" and f.weight is None and f.prepares
-    assert "short-handled" in BY_ID["large_breasts"].prepares
-    assert "reassess Mallampati" in BY_ID["in_labour"].prepares
+    f = BY_ID["in_labour"]
+    assert f.role == "preparation" and f.weight is None
+    assert "reassess Mallampati" in f.prepares
+
+
+def test_large_breasts_weigh_in_the_index_and_keep_their_preparation() -> None:
+    """No published ratio exists (Khan 2014 review; Datta 1981 short handle): a project
+    rule, shown as such, smaller than Mallampati 2's relative risk (Rocke 1992, 3.23)."""
+    f = BY_ID["large_breasts"]
+    assert f.role == "difficulty" and f.kind == "project_ratio"
+    assert f.evidence.basis == "project_rule"
+    assert 1 < f.weight < BY_ID["mallampati_2"].weight  # type: ignore[operator]
+    assert "short-handled" in f.prepares
 
 
 def test_ids_unique_and_weights_positive() -> None:
