@@ -9,9 +9,10 @@ them a value is refused; inside them but improbable (see
 
 from __future__ import annotations
 
+import unicodedata
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator
+from pydantic import AfterValidator, BaseModel, ConfigDict, Field, field_validator
 from pydantic_core import PydanticCustomError
 
 OedemaSign = Literal[
@@ -25,6 +26,27 @@ OedemaSign = Literal[
 PreeclampsiaStatus = Literal["none", "without_severe_features", "with_severe_features"]
 IntubationHistory = Literal["none", "difficult", "failed"]
 Grade3 = Literal["low", "moderate", "high"]
+
+
+# Characters that print as nothing or reorder what follows: control characters (NUL,
+# escape, newline...) and the bidirectional embeddings, overrides and isolates, which
+# can make an identifier read differently from what was typed.
+_BIDI_CONTROLS = frozenset("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069")
+
+
+def _printable(value: str) -> str:
+    for ch in value:
+        if unicodedata.category(ch) == "Cc" or ch in _BIDI_CONTROLS:
+            raise PydanticCustomError(
+                "control_character",
+                "contains the control character U+{code}; identifiers and labels must be "
+                "plain printable text",
+                {"code": f"{ord(ch):04X}"},
+            )
+    return value
+
+
+PrintableText = Annotated[str, AfterValidator(_printable)]
 
 
 class _Model(BaseModel):
@@ -172,9 +194,11 @@ class Context(_Model):
 class Identity(_Model):
     """Identifiers printed on the plan only when given; blank lines otherwise."""
 
-    name: str | None = Field(default=None, max_length=80)
-    record_number: str | None = Field(default=None, max_length=40)
-    date_of_birth: str | None = Field(default=None, max_length=20, description="As written")
+    name: PrintableText | None = Field(default=None, max_length=80)
+    record_number: PrintableText | None = Field(default=None, max_length=40)
+    date_of_birth: PrintableText | None = Field(
+        default=None, max_length=20, description="As written"
+    )
 
 
 class Assessment(_Model):
@@ -186,7 +210,7 @@ class Assessment(_Model):
     history: History = History()
     preeclampsia: Preeclampsia = Preeclampsia()
     context: Context = Context()
-    label: str | None = Field(
+    label: PrintableText | None = Field(
         default=None,
         max_length=120,
         description="Free-text label shown on the plan (e.g. a clinic reference); optional",

@@ -66,7 +66,12 @@ def problems_from_validation(
             message = _field_range(model, err["loc"]) or message
         if kind == "literal_error":
             message = "must be one of " + err.get("ctx", {}).get("expected", "the listed values")
-        has_value = kind not in ("missing",) and not isinstance(err.get("input"), dict)
+        # Identifiers are never echoed back: messages can end up in logs.
+        has_value = (
+            kind not in ("missing",)
+            and not isinstance(err.get("input"), dict)
+            and err["loc"][:1] != ("identity",)
+        )
         problems.append(Problem(_where(err["loc"]), message, err.get("input"), has_value))
     return problems
 
@@ -79,6 +84,47 @@ def assessment_from_mapping(data: Mapping[str, Any], source: str = "input") -> A
         raise InputError(source, problems_from_validation(exc, Assessment)) from None
 
 
+class _DuplicateKeyError(ValueError):
+    def __init__(self, keys: list[str]) -> None:
+        self.keys = keys
+        super().__init__(", ".join(keys))
+
+
+def _refuse_duplicates(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    """JSON object hook: a key given twice is refused, never silently the last value."""
+    seen: dict[str, Any] = {}
+    repeated: list[str] = []
+    for key, value in pairs:
+        if key in seen and key not in repeated:
+            repeated.append(key)
+        seen[key] = value
+    if repeated:
+        raise _DuplicateKeyError(repeated)
+    return seen
+
+
+def _decode(text: str, source: str, fmt: str) -> object:
+    try:
+        if fmt == "json":
+            return json.loads(text, object_pairs_hook=_refuse_duplicates)
+        return tomllib.loads(text)
+    except json.JSONDecodeError as exc:
+        where = f"line {exc.lineno}, column {exc.colno}"
+        raise InputError(source, [Problem(where, f"not valid JSON: {exc.msg}")]) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(source, [Problem("(syntax)", f"not valid TOML: {exc}")]) from None
+    except _DuplicateKeyError as exc:
+        problems = [
+            Problem(f"key {key!r}", "is given more than once; give each key once")
+            for key in exc.keys
+        ]
+        raise InputError(source, problems) from None
+    except RecursionError:
+        # An assessment is two levels deep; thousands of levels are not an assessment.
+        problem = Problem("(structure)", "is nested far too deeply to be an assessment")
+        raise InputError(source, [problem]) from None
+
+
 def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessment:
     """Decode TOML or JSON text and validate it.
 
@@ -87,18 +133,14 @@ def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessme
         source: the name shown in error messages.
         fmt: ``"toml"`` or ``"json"``; guessed from the first character when None.
     """
+    # Many Windows editors and spreadsheets start UTF-8 files with a byte-order mark.
+    text = text.removeprefix("\ufeff")
     if not text.strip():
         problem = Problem("(file)", "is empty; expected a TOML or JSON assessment")
         raise InputError(source, [problem])
     if fmt is None:
         fmt = "json" if text.lstrip().startswith("{") else "toml"
-    try:
-        data = json.loads(text) if fmt == "json" else tomllib.loads(text)
-    except json.JSONDecodeError as exc:
-        where = f"line {exc.lineno}, column {exc.colno}"
-        raise InputError(source, [Problem(where, f"not valid JSON: {exc.msg}")]) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, [Problem("(syntax)", f"not valid TOML: {exc}")]) from None
+    data = _decode(text, source, fmt)
     if not isinstance(data, dict):
         raise InputError(source, [Problem("(top level)", "must be a table of sections")])
     return assessment_from_mapping(data, source)

@@ -35,6 +35,70 @@ def test_bad_input_exit_2_clear_message_no_traceback(runner, tmp_path: Path, cas
     assert "Traceback" not in r.output and r.stdout == ""
 
 
+JSON_BAD = {
+    "deeply_nested": ('{"patient": ' + "[" * 100_000 + "]" * 100_000 + "}", "nested far too"),
+    "key_twice": ('{"patient": {"weight_kg": 80, "weight_kg": 90}}', "'weight_kg': is given more"),
+    "section_twice": (
+        '{"patient": {"weight_kg": 80}, "patient": {"weight_kg": 90}}',
+        "'patient': is given more",
+    ),
+}
+
+
+@pytest.mark.parametrize("case", sorted(JSON_BAD))
+def test_bad_json_exit_2_clear_message_no_traceback(runner, tmp_path: Path, case: str) -> None:
+    text, expected = JSON_BAD[case]
+    f = tmp_path / "a.json"
+    f.write_text(text)
+    r = runner.invoke(app, ["plan", str(f), "-f", "json"])
+    assert r.exit_code == 2, r.output
+    assert expected in r.stderr
+    assert "Traceback" not in r.output and r.stdout == ""
+
+
+def test_deeply_nested_toml_exit_2(runner, tmp_path: Path) -> None:
+    f = tmp_path / "a.toml"
+    f.write_text("x = " + "[" * 100_000 + "]" * 100_000 + "\n")
+    r = runner.invoke(app, ["plan", str(f)])
+    assert r.exit_code == 2 and "nested far too" in r.stderr and r.stdout == ""
+
+
+@pytest.mark.parametrize("suffix", [".toml", ".json"])
+def test_utf8_byte_order_mark_is_read(runner, tmp_path: Path, suffix: str) -> None:
+    """Windows editors and spreadsheets often start UTF-8 files with EF BB BF."""
+    body = "[patient]\nweight_kg = 80\n" if suffix == ".toml" else '{"patient": {"weight_kg": 80}}'
+    f = tmp_path / f"a{suffix}"
+    f.write_bytes(b"\xef\xbb\xbf" + body.encode())
+    r = runner.invoke(app, ["plan", str(f), "-f", "json"])
+    assert r.exit_code == 0, r.stderr
+    assert json.loads(r.stdout)["assessment"]["patient"]["weight_kg"] == 80
+
+
+@pytest.mark.parametrize(
+    ("field", "char"),
+    [
+        ("name", "\\u0000"),
+        ("record_number", "\\u001b"),
+        ("name", "\\n"),
+        ("name", "\\u202e"),  # right-to-left override: reorders what follows
+    ],
+)
+def test_control_characters_in_identifiers_refused(runner, tmp_path: Path, field, char) -> None:
+    f = tmp_path / "a.toml"
+    f.write_text(f'[identity]\n{field} = "Ann{char}Other"\n[patient]\nweight_kg = 80\n')
+    r = runner.invoke(app, ["plan", str(f)])
+    assert r.exit_code == 2, r.output
+    assert f"identity.{field}: contains the control character" in r.stderr
+    assert "Ann" not in r.stderr  # identifiers are not echoed back
+
+
+def test_accented_names_still_accepted(runner, tmp_path: Path) -> None:
+    f = tmp_path / "a.toml"
+    f.write_text('[identity]\nname = "Zoë Ñúñez-Łąka"\n[patient]\nweight_kg = 80\n')
+    r = runner.invoke(app, ["plan", str(f)])
+    assert r.exit_code == 0 and "Zoë Ñúñez-Łąka" in r.stdout
+
+
 def test_all_problems_reported_at_once(runner, tmp_path: Path) -> None:
     f = tmp_path / "a.toml"
     f.write_text(
