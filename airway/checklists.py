@@ -93,8 +93,8 @@ UNIT_VALUES: dict[str, tuple[str, Callable[[float], str]]] = {
 Value = Callable[["Plan"], str]
 
 VALUES: dict[str, tuple[str, Value]] = {
-    "level": ("risk level 1-4", lambda p: str(p.risk.level)),
-    "level_label": ("risk level label", lambda p: p.risk.label),
+    "level": ("airway level 1-4 (write 'airway level {{level}}')", lambda p: str(p.risk.level)),
+    "level_label": ("airway level in words", lambda p: p.risk.label),
     "tube_first": (
         "first tracheal tube, mm",
         lambda p: f"{p.equipment.tracheal_tube_mm.first:.1f}",

@@ -18,6 +18,7 @@ from typing import TYPE_CHECKING, Annotated
 import typer
 
 from . import __version__
+from .cli_help import GroupedCommand
 from .errors import AirwayError
 
 if TYPE_CHECKING:
@@ -30,10 +31,13 @@ if TYPE_CHECKING:
 app = typer.Typer(
     add_completion=False,
     no_args_is_help=True,
-    context_settings={"help_option_names": ["-h", "--help"]},
+    # Plain help (see cli_help): whole at 80 columns, options grouped under headings.
+    rich_markup_mode=None,
+    context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100},
     help="Obstetric airway plans from one bedside assessment. A decision aid: it does "
     "not replace clinical judgement, local guidelines or licensed practice.",
 )
+command = app.command
 
 
 class Format(StrEnum):
@@ -42,12 +46,30 @@ class Format(StrEnum):
     json = "json"
 
 
-FormatOpt = Annotated[Format, typer.Option("--format", "-f", help="Output format.")]
-OutputOpt = Annotated[
-    Path | None, typer.Option("--output", "-o", help="Write to this file instead of stdout.")
+class DataFormat(StrEnum):
+    text = "text"
+    json = "json"
+
+
+OUT, UNIT, INPUT = "Output", "Unit files", "Input"
+FormatOpt = Annotated[
+    Format, typer.Option("--format", "-f", help="Output format.", rich_help_panel=OUT)
 ]
-ForceOpt = Annotated[bool, typer.Option("--force", help="Replace an existing output file.")]
-PdfOpt = Annotated[Path | None, typer.Option("--pdf", help="Also write the plan as a PDF file.")]
+OutputOpt = Annotated[
+    Path | None,
+    typer.Option(
+        "--output", "-o", metavar="FILE", help="Write to FILE, not stdout.", rich_help_panel=OUT
+    ),
+]
+ForceOpt = Annotated[
+    bool, typer.Option("--force", help="Replace an existing output file.", rich_help_panel=OUT)
+]
+PdfOpt = Annotated[
+    Path | None,
+    typer.Option(
+        "--pdf", metavar="FILE", help="Also print the plan to a PDF.", rich_help_panel=OUT
+    ),
+]
 
 
 class Paper(StrEnum):
@@ -55,17 +77,38 @@ class Paper(StrEnum):
     letter = "letter"
 
 
-PaperOpt = Annotated[Paper, typer.Option("--paper", help="PDF paper size.")]
+PaperOpt = Annotated[Paper, typer.Option("--paper", help="PDF paper size.", rich_help_panel=OUT)]
 CatalogueOpt = Annotated[
     Path | None,
-    typer.Option("--catalogue", help="The unit's equipment catalogue (TOML); default: shipped."),
+    typer.Option(
+        "--catalogue", metavar="FILE", help="Equipment catalogue (TOML).", rich_help_panel=UNIT
+    ),
 ]
 ChecklistsOpt = Annotated[
-    Path | None, typer.Option("--checklists", help="The unit's checklist folder (*.md).")
+    Path | None,
+    typer.Option(
+        "--checklists", metavar="DIR", help="Folder of checklists (*.md).", rich_help_panel=UNIT
+    ),
 ]
 ConfigOpt = Annotated[
-    Path | None, typer.Option("--config", help="Unit config file (default: ./airway.toml).")
+    Path | None,
+    typer.Option(
+        "--config",
+        metavar="FILE",
+        help="Unit config (default ./airway.toml).",
+        rich_help_panel=UNIT,
+    ),
 ]
+JsonAlias = Annotated[bool, typer.Option("--json", hidden=True, help="Same as -f json.")]
+
+
+def _alias(new: object, old: object, name: str, old_name: str) -> object:
+    """An option given under its old spelling; both at once must agree."""
+    if old is None or old in ((), []):
+        return new
+    if new is not None and new not in ((), []) and new != old:
+        raise typer.BadParameter(f"{old_name} is the old name of {name}; give one of them")
+    return old
 
 
 @contextmanager
@@ -158,24 +201,28 @@ def _plan_for(
     return build_plan(assessment, cat, lists)
 
 
-@app.command()
+@command(cls=GroupedCommand)
 def plan(
     file: Annotated[
-        str | None, typer.Argument(help="Assessment file (.toml or .json), or - for stdin.")
+        str | None,
+        typer.Argument(metavar="FILE", help="Assessment (.toml or .json), or - for stdin."),
     ] = None,
-    demo: Annotated[bool, typer.Option("--demo", help="Use the built-in demo assessment.")] = False,
+    demo: Annotated[
+        bool,
+        typer.Option("--demo", help="Use the built-in demo assessment.", rich_help_panel=INPUT),
+    ] = False,
     fmt: FormatOpt = Format.text,
     output: OutputOpt = None,
     force: ForceOpt = False,
+    pdf: PdfOpt = None,
+    paper: PaperOpt = Paper.A4,
     catalogue: CatalogueOpt = None,
     checklists: ChecklistsOpt = None,
     config: ConfigOpt = None,
-    pdf: PdfOpt = None,
-    paper: PaperOpt = Paper.A4,
 ) -> None:
     """The plan for one assessment file.
 
-    Example: airway plan examples/routine-elective.toml --format markdown -o plan.md
+    Example: airway plan examples/routine-elective.toml -f markdown -o plan.md
     """
     from .loading import parse_assessment, read_assessment
 
@@ -193,46 +240,111 @@ def plan(
             _emit(_render(the_plan, fmt), output, force)
 
 
-Flag = Annotated[bool | None, typer.Option(show_default=False)]
+PAT, AIR, HIST, PE, CTX = "Patient", "Airway", "History", "Pre-eclampsia", "Context"
 
 
-@app.command()
+def _opt(names: str, metavar: str | None, help_: str, panel: str) -> typer.models.OptionInfo:
+    decls = names.split(",")
+    return typer.Option(*decls, metavar=metavar, help=help_, rich_help_panel=panel)
+
+
+def _flag(names: str, help_: str, panel: str) -> typer.models.OptionInfo:
+    return typer.Option(names, help=help_, rich_help_panel=panel, show_default=False)
+
+
+def _hidden(name: str) -> typer.models.OptionInfo:
+    return typer.Option(name, hidden=True)
+
+
+@command(cls=GroupedCommand)
 def quick(
-    weight_kg: Annotated[float, typer.Option("--weight-kg", help="Current weight (kg).")],
-    height_cm: Annotated[float | None, typer.Option(help="Height (cm).")] = None,
-    age: Annotated[int | None, typer.Option("--age", help="Age (years).")] = None,
-    gestation_weeks: Annotated[float | None, typer.Option(help="Gestation (weeks).")] = None,
-    in_labour: Annotated[bool | None, typer.Option("--in-labour/--not-in-labour")] = None,
-    mallampati: Annotated[int | None, typer.Option(help="Modified Mallampati 1-4.")] = None,
-    upper_lip_bite: Annotated[int | None, typer.Option(help="Upper lip bite class 1-3.")] = None,
-    thyromental_cm: Annotated[float | None, typer.Option()] = None,
-    mouth_opening_cm: Annotated[float | None, typer.Option()] = None,
-    neck_movement: Annotated[str | None, typer.Option(help="normal, reduced or fixed.")] = None,
-    large_breasts: Flag = None,
-    short_neck: Flag = None,
-    receding_mandible: Flag = None,
-    snoring: Flag = None,
+    weight_kg: Annotated[float, _opt("--weight-kg", "KG", "Current weight, kg.", PAT)],
+    height_cm: Annotated[float | None, _opt("--height-cm", "CM", "Height, cm.", PAT)] = None,
+    age_years: Annotated[int | None, _opt("--age-years", "YEARS", "Age, years.", PAT)] = None,
+    gestation_weeks: Annotated[
+        float | None, _opt("--gestation-weeks", "WEEKS", "Gestation, weeks.", PAT)
+    ] = None,
+    in_labour: Annotated[
+        bool | None, _flag("--in-labour/--not-in-labour", "In labour now, or not.", PAT)
+    ] = None,
+    mallampati: Annotated[
+        int | None, _opt("--mallampati", "1-4", "Modified Mallampati class.", AIR)
+    ] = None,
+    upper_lip_bite: Annotated[
+        int | None, _opt("--upper-lip-bite", "1-3", "Upper lip bite class.", AIR)
+    ] = None,
+    thyromental_cm: Annotated[
+        float | None, _opt("--thyromental-cm", "CM", "Thyromental distance, cm.", AIR)
+    ] = None,
+    mouth_opening_cm: Annotated[
+        float | None, _opt("--mouth-opening-cm", "CM", "Inter-incisor gap, cm.", AIR)
+    ] = None,
+    neck_movement: Annotated[
+        str | None, _opt("--neck-movement", "WHICH", "normal, reduced or fixed.", AIR)
+    ] = None,
+    large_breasts: Annotated[
+        bool | None, _flag("--large-breasts/--no-large-breasts", "Large breasts, or not.", AIR)
+    ] = None,
+    short_neck: Annotated[
+        bool | None, _flag("--short-neck/--no-short-neck", "Short neck, or not.", AIR)
+    ] = None,
+    receding_mandible: Annotated[
+        bool | None,
+        _flag("--receding-mandible/--no-receding-mandible", "Receding mandible, or not.", AIR),
+    ] = None,
     intubation: Annotated[
-        str | None, typer.Option("--previous-intubation", help="none, difficult or failed.")
+        str | None,
+        _opt("--previous-intubation", "WHICH", "none, difficult or failed.", HIST),
+    ] = None,
+    snoring: Annotated[
+        bool | None, _flag("--snoring/--no-snoring", "Snores, or not.", HIST)
     ] = None,
     preeclampsia: Annotated[
-        str | None, typer.Option(help="none, without_severe_features, with_severe_features.")
+        str | None,
+        _opt(
+            "--preeclampsia",
+            "STATUS",
+            "none, without_severe_features or with_severe_features.",
+            PE,
+        ),
     ] = None,
-    sign: Annotated[list[str] | None, typer.Option(help="Airway oedema sign; repeatable.")] = None,
-    platelets: Annotated[float | None, typer.Option(help="Platelets (x10^9/L).")] = None,
-    category: Annotated[int | None, typer.Option(help="Caesarean urgency category 1-4.")] = None,
-    anaesthetist: Annotated[str | None, typer.Option(help="senior, intermediate, junior.")] = None,
+    signs: Annotated[
+        list[str] | None,
+        _opt(
+            "--signs",
+            "SIGN",
+            "Airway oedema sign, repeat for each: voice_change, stridor, facial_oedema, "
+            "tongue_swelling, new_snoring, breathless_lying_flat.",
+            PE,
+        ),
+    ] = None,
+    platelets: Annotated[
+        float | None, _opt("--platelets", "X10^9/L", "Platelet count, x10^9/L.", PE)
+    ] = None,
+    urgency_category: Annotated[
+        int | None, _opt("--urgency-category", "1-4", "Caesarean urgency category.", CTX)
+    ] = None,
+    anaesthetist: Annotated[
+        str | None, _opt("--anaesthetist", "GRADE", "senior, intermediate or junior.", CTX)
+    ] = None,
     fmt: FormatOpt = Format.text,
-    full: Annotated[bool, typer.Option("--full", help="The full plan, not one screen.")] = False,
+    full: Annotated[
+        bool, typer.Option("--full", help="The full plan, not one screen.", rich_help_panel=OUT)
+    ] = False,
     output: OutputOpt = None,
     force: ForceOpt = False,
-    catalogue: CatalogueOpt = None,
     pdf: PdfOpt = None,
     paper: PaperOpt = Paper.A4,
+    catalogue: CatalogueOpt = None,
+    old_age: Annotated[int | None, _hidden("--age")] = None,
+    old_sign: Annotated[list[str] | None, _hidden("--sign")] = None,
+    old_category: Annotated[int | None, _hidden("--category")] = None,
 ) -> None:
-    """The plan from a few flags, for the emergency: only --weight-kg is required.
+    """One screen for the emergency, from a few findings.
 
-    Example: airway quick --weight-kg 98 --height-cm 165 --mallampati 3 --category 1
+    Only --weight-kg is needed; a finding not given is shown as not assessed.
+
+    Example: airway quick --weight-kg 98 --height-cm 165 --mallampati 3 --urgency-category 1
     """
     from .quick import quick_assessment
 
@@ -240,7 +352,7 @@ def quick(
         assessment = quick_assessment(
             weight_kg=weight_kg,
             height_cm=height_cm,
-            age_years=age,
+            age_years=_alias(age_years, old_age, "--age-years", "--age"),
             gestation_weeks=gestation_weeks,
             in_labour=in_labour,
             mallampati=mallampati,
@@ -254,9 +366,11 @@ def quick(
             snoring=snoring,
             intubation=intubation,
             status=preeclampsia,
-            signs=sign,
+            signs=_alias(signs, old_sign, "--signs", "--sign"),
             platelets_10e9_per_l=platelets,
-            urgency_category=category,
+            urgency_category=_alias(
+                urgency_category, old_category, "--urgency-category", "--category"
+            ),
             anaesthetist=anaesthetist,
         )
         the_plan = _plan_for(assessment, catalogue)
@@ -264,13 +378,32 @@ def quick(
         _emit(_render(the_plan, fmt, compact=not full), output, force)
 
 
-@app.command()
+def _data_format(fmt: DataFormat, old_json: bool) -> DataFormat:
+    return DataFormat.json if old_json else fmt
+
+
+DataFormatOpt = Annotated[
+    DataFormat, typer.Option("--format", "-f", help="Output format.", rich_help_panel=OUT)
+]
+
+
+@command(cls=GroupedCommand)
 def oxygen(
-    file: Annotated[str, typer.Argument(help="Assessment file (.toml or .json), or - for stdin.")],
+    file: Annotated[
+        str, typer.Argument(metavar="FILE", help="Assessment (.toml or .json), or - for stdin.")
+    ],
     end_tidal_o2: Annotated[
-        float, typer.Option(min=0.5, max=0.95, help="End-tidal O2 fraction reached.")
+        float,
+        typer.Option(
+            min=0.5,
+            max=0.95,
+            metavar="FRACTION",
+            help="End-tidal O2 fraction reached by pre-oxygenation.",
+            rich_help_panel=INPUT,
+        ),
     ] = 0.9,
-    as_json: Annotated[bool, typer.Option("--json", help="As JSON.")] = False,
+    fmt: DataFormatOpt = DataFormat.text,
+    old_json: JsonAlias = False,
 ) -> None:
     """Predicted minutes to desaturation: scenarios side by side.
 
@@ -282,7 +415,7 @@ def oxygen(
 
     with _errors():
         oxy = oxygenation_for(read_assessment(file), feo2=end_tidal_o2)
-    if as_json:
+    if _data_format(fmt, old_json) is DataFormat.json:
         sys.stdout.write(json.dumps(oxy.model_dump(mode="json"), indent=2, sort_keys=True) + "\n")
     else:
         sys.stdout.write("\n".join(oxygenation_lines(oxy)[1:]) + "\n")
@@ -299,17 +432,29 @@ class SheetPaper(StrEnum):
     A3 = "A3"
 
 
-@app.command()
+@command(cls=GroupedCommand)
 def sheet(
-    kind: Annotated[SheetKind, typer.Argument(help="contents, sequence or doses.")],
-    output: Annotated[Path, typer.Option("--output", "-o", help="PDF file to write.")],
-    paper: Annotated[SheetPaper, typer.Option("--paper", help="A4 or A3.")] = SheetPaper.A4,
-    landscape: Annotated[bool, typer.Option("--landscape", help="Landscape page.")] = False,
+    kind: Annotated[SheetKind, typer.Argument(metavar="KIND", help="Which sheet.")],
+    output: Annotated[
+        Path,
+        typer.Option(
+            "--output", "-o", metavar="FILE", help="PDF file to write.", rich_help_panel=OUT
+        ),
+    ],
+    paper: Annotated[
+        SheetPaper, typer.Option("--paper", help="A4 or A3.", rich_help_panel=OUT)
+    ] = SheetPaper.A4,
+    landscape: Annotated[
+        bool, typer.Option("--landscape", help="Landscape page.", rich_help_panel=OUT)
+    ] = False,
     force: ForceOpt = False,
     catalogue: CatalogueOpt = None,
     checklists: ChecklistsOpt = None,
     contacts: Annotated[
-        Path | None, typer.Option("--contacts", help="The unit's contact list (TOML).")
+        Path | None,
+        typer.Option(
+            "--contacts", metavar="FILE", help="Contact list (TOML).", rich_help_panel=UNIT
+        ),
     ] = None,
     config: ConfigOpt = None,
 ) -> None:
@@ -330,18 +475,17 @@ def sheet(
         typer.echo(f"wrote {output}", err=True)
 
 
-@app.command()
-def factors(
-    as_json: Annotated[bool, typer.Option("--json", help="As JSON.")] = False,
-) -> None:
+@command(cls=GroupedCommand)
+def factors(fmt: DataFormatOpt = DataFormat.text, old_json: JsonAlias = False) -> None:
     """List the risk-factor catalogue with weights and sources."""
     from .factor_table import factor_rows, render_factor_table
 
     rows = factor_rows()
+    as_json = _data_format(fmt, old_json) is DataFormat.json
     sys.stdout.write(json.dumps(rows, indent=2) + "\n" if as_json else render_factor_table(rows))
 
 
-@app.command()
+@command(cls=GroupedCommand)
 def schema() -> None:
     """Print the JSON Schema of the assessment input."""
     from .assessment import Assessment

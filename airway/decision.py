@@ -25,12 +25,16 @@ POINTS_EVIDENCE = Evidence("project", "project_rule", "points per grade and thei
 
 # Urgency dominates: no other single factor should outweigh it (project rule).
 URGENCY_POINTS = {1: 4, 2: 2, 3: -3, 4: -4}
+# The four categories of Lucas 2000, described in this project's words.
 URGENCY_TEXT = {
-    1: "category 1: immediate threat to the life of the woman or fetus",
-    2: "category 2: compromise, not immediately life-threatening",
-    3: "category 3: early delivery needed, no compromise",
-    4: "category 4: at a time to suit the woman and the team",
+    1: "category 1: her life or the baby's is in danger now",
+    2: "category 2: she or the baby is compromised, without danger to life yet",
+    3: "category 3: nobody is compromised, but delivery should be soon",
+    4: "category 4: planned, at a time that suits her and the team",
 }
+
+# The same heading in text, Markdown and PDF.
+DECISION_TITLE = "If intubation fails (decided before induction)"
 ANAESTHETIST_POINTS = {"senior": 1, "intermediate": 0, "junior": -1}
 GRADE_POINTS = {"low": 1, "moderate": 0, "high": -1}  # surgery, aspiration
 ALTERNATIVE_POINTS = {"feasible": -1, "difficult": 0, "impossible": 1}
@@ -39,15 +43,35 @@ ALTERNATIVE_POINTS = {"feasible": -1, "difficult": 0, "impossible": 1}
 HEADLINE = {
     "wake": "WAKE",
     "proceed": "PROCEED",
-    "balanced": "BALANCED: the senior anaesthetist decides before induction",
+    "balanced": "SENIOR CALL: the factors are even, the senior anaesthetist decides now",
     "decide_on_the_day": "DECIDE ON THE DAY, once the urgency is known",
 }
 PHRASE = {
     "wake": "wake her",
     "proceed": "proceed with surgery",
-    "balanced": "no lean either way, so the senior anaesthetist decides now, before induction",
+    "balanced": "a senior call: the factors are even, so the senior anaesthetist decides "
+    "now, before induction",
     "decide_on_the_day": "decide on the day, once the urgency is known",
 }
+
+
+# A recommendation in two or three words, for lists such as "category 1: proceed".
+SHORT = {
+    "wake": "wake",
+    "proceed": "proceed",
+    "balanced": "senior call",
+    "decide_on_the_day": "decide on the day",
+}
+
+
+def by_category_text(if_category: dict[str, str]) -> str:
+    """'if urgency category 1 or 2: proceed; category 3 or 4: wake' for a clinic plan."""
+    groups: dict[str, list[str]] = {}
+    for category, recommendation in if_category.items():
+        groups.setdefault(recommendation, []).append(category)
+    return "if urgency category " + "; category ".join(
+        f"{' or '.join(cats)}: {SHORT[rec]}" for rec, cats in groups.items()
+    )
 
 
 class DecisionFactor(BaseModel):

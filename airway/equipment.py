@@ -216,7 +216,7 @@ def choose_equipment(
         Item(
             name="Videolaryngoscope",
             detail=lar.videolaryngoscope,
-            why=f"first device: level {level}{', BMI 40 or more' if high_bmi else ''}"
+            why=f"first device: airway level {level}{', BMI 40 or more' if high_bmi else ''}"
             if video_first
             else "in the room, on and checked",
             open_now=video_first,

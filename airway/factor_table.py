@@ -34,7 +34,7 @@ def render_factor_table(rows: list[dict[str, object]]) -> str:
     lines = ["RISK FACTORS (weight: ratio; ln: what one unit adds to the index)", ""]
     for r in rows:
         weight = (
-            "forces level 4"
+            "forces airway level 4"
             if r["role"] == "override"
             else (
                 "preparation only"

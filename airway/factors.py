@@ -51,11 +51,11 @@ MOUTH_OPENING_SMALL_CM = 4.0  # El-Ganzouri 1996 and handbook tables
 NECK_CIRCUMFERENCE_LARGE_CM = 43.0  # handbook table, obese cohorts
 BMI_REFERENCE = 25.0  # project rule: per-unit odds counted above the top of WHO normal
 AGE_REFERENCE_YEARS = 35  # McKeen 2011 found age >= 35 predictive; per-year odds above it
-PLATELETS_LOW_10E9 = 70.0
+PLATELETS_LOW_10E9 = 70.0  # SOAP 2021 consensus threshold for neuraxial block, from memory
 # Project rule, no published ratio: breasts hinder the laryngoscope's insertion more
 # than they narrow the view, and a short handle largely offsets them, so they weigh
 # less than Mallampati 2 (3.23) and as much as pre-eclampsia without severe features.
-LARGE_BREASTS_RATIO = 1.5  # SOAP 2021 consensus threshold for neuraxial block, from memory
+LARGE_BREASTS_RATIO = 1.5
 
 
 @dataclass(frozen=True)
@@ -104,7 +104,7 @@ def _mallampati(cls: int) -> Reader:
         mp = a.airway.mallampati
         if mp is None:
             return Reading(present=None)
-        return Reading(present=mp == cls, detail=f"class {mp}")
+        return Reading(present=mp == cls)  # the label already names the class
 
     return read
 

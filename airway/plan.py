@@ -112,7 +112,7 @@ def _steps(
             id="brief",
             phase="before induction",
             title="Team brief, aloud",
-            summary=f"brief aloud: level {risk.level}, pre-made decision, roles",
+            summary=f"brief aloud: airway level {risk.level}, pre-made decision, roles",
             actions=(
                 f"Airway level {risk.level} of 4: {risk.label}.",
                 f"If intubation fails, the pre-made decision is: {pre}.",
@@ -256,16 +256,21 @@ def _steps(
             id="cico",
             phase="can't intubate, can't oxygenate",
             title="Can't intubate, can't oxygenate: front-of-neck access",
-            summary=f"CICO: scalpel (no. 10), bougie, {eq.front_of_neck_tube_mm:.1f} mm tube; "
-            "perimortem caesarean if circulation fails",
+            summary=f"CICO: keep oxygenating from above; scalpel, bougie, "
+            f"{eq.front_of_neck_tube_mm:.1f} mm tube; arrest: perimortem caesarean",
             actions=(
-                "Declare it aloud. 100% oxygen by face mask and supraglottic airway "
-                "throughout; make sure she is paralysed.",
-                f"Scalpel cricothyroidotomy: wide (no. 10) blade, bougie, "
-                f"{eq.front_of_neck_tube_mm:.1f} mm cuffed tube; confirm with capnography.",
-                "Membrane not palpable: 8-10 cm vertical midline incision, blunt "
-                "dissection, then as above.",
-                "If maternal circulation fails: perimortem caesarean section.",
+                "Say 'can't intubate, can't oxygenate' so that everyone hears; the "
+                "front-of-neck kit comes to the head end.",
+                "Keep oxygenating from above (face mask or supraglottic airway, oxygen "
+                "100%) while the neck is opened; full neuromuscular block helps.",
+                "Neck extended; membrane felt: cut through it with a no. 10 scalpel, pass a "
+                f"bougie into the trachea and slide a {eq.front_of_neck_tube_mm:.1f} mm "
+                "cuffed tube over it.",
+                "Membrane not felt: vertical midline skin cut of 8-10 cm, part the tissues "
+                "with the fingers until it is felt, then the same.",
+                "The tube is in the trachea only when capnography shows it.",
+                "If her circulation fails: resuscitate and deliver by perimortem caesarean "
+                "section.",
             ),
             basis=f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}",
         ),
@@ -297,7 +302,7 @@ def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[st
     if p.booking_weight_kg is not None and p.booking_weight_kg > p.weight_kg + 10:
         out.append("Booking weight is more than 10 kg above current weight: check both.")
     if a.airway.mallampati is None:
-        out.insert(0, "Mallampati not assessed: the level may understate the difficulty.")
+        out.insert(0, "Mallampati not assessed: the airway level may understate the difficulty.")
     unscaled = [d.label for d in doses if not d.scaled_as_intended]
     if unscaled:
         out.append(

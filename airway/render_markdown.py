@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+from .decision import DECISION_TITLE, by_category_text
 from .doses import SCALAR_LABEL, dose_text
 from .plan_model import Plan
 from .render_text import minutes_text, per_kg_text, weight_text
+from .scoring import level_heading, thresholds_text
 
 
 def _esc(text: str) -> str:
@@ -36,16 +38,12 @@ def render_markdown(plan: Plan) -> str:
         add(">")
     out.pop()
     add("")
-    add(f"## Level {r.level} of 4: {r.label}")
+    add(f"## {level_heading(r.level)}")
     add("")
-    lo, mid, hi = r.thresholds
-    add(
-        f"Index **{r.index:.2f}** (level 2 from {lo:.2f}, 3 from {mid:.2f}, 4 from {hi:.2f}). "
-        + r.note
-    )
+    add(f"Index **{r.index:.2f}** ({thresholds_text(r.thresholds)}). " + r.note)
     if r.overrides:
         add("")
-        add("Forced to level 4 by: " + ", ".join(r.overrides) + ".")
+        add("Forced to airway level 4 by: " + ", ".join(r.overrides) + ".")
     add("")
     add("| Factor | Finding | Weight | Adds | Source |")
     add("|---|---|---|---:|---|")
@@ -60,7 +58,7 @@ def render_markdown(plan: Plan) -> str:
         add("**Not assessed:** " + ", ".join(plan.not_assessed) + ".")
     if plan.preparation:
         add("")
-        add("### Prepare because of")
+        add("### Extra preparation for her findings")
         add("")
         for p in plan.preparation:
             add(f"- {_esc(p)}")
@@ -123,9 +121,9 @@ def render_markdown(plan: Plan) -> str:
     add("")
     add("Basis: " + " ".join(f"{dose.label}: {dose.basis}." for dose in plan.doses))
     add("")
-    add("## If intubation fails: decided before induction")
+    add(f"## {DECISION_TITLE}")
     add("")
-    add(f"Recommendation: **{d.headline}**.")
+    add(f"Pre-made decision: **{d.headline}**.")
     add("")
     add("| Factor | Finding | Points | Points to |")
     add("|---|---|---:|---|")
@@ -137,9 +135,7 @@ def render_markdown(plan: Plan) -> str:
         )
     if d.if_category:
         add("")
-        add(
-            "By urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items()) + "."
-        )
+        add(by_category_text(d.if_category).capitalize() + ".")
     add("")
     add("Final decision, ticked before induction: \\[ \\] wake \\[ \\] proceed")
     add("")
@@ -172,7 +168,7 @@ def render_markdown(plan: Plan) -> str:
                 add(f"- {'[ ] ' if entry.checkbox else ''}{_esc(entry.text)}")
     if plan.warnings:
         add("")
-        add("## Check")
+        add("## Warnings: check these before relying on the plan")
         add("")
         for w in plan.warnings:
             add(f"- {_esc(w)}")

@@ -32,10 +32,12 @@ from reportlab.platypus import (
     TableStyle,
 )
 
+from .decision import DECISION_TITLE, by_category_text
 from .doses import dose_text
 from .errors import AirwayError
 from .plan_model import Plan, RenderedChecklist
 from .render_text import minutes_text, per_kg_text, weight_text
+from .scoring import level_heading
 from .sources import source_label
 
 PAPER = {"A4": A4, "letter": letter}
@@ -160,7 +162,7 @@ def _curve(plan: Plan, width: float) -> Drawing:
     y90 = plot.y + plot.height * (90 - 75) / 25
     d.add(Line(plot.x, y90, plot.x + plot.width, y90, strokeColor=WARN, strokeDashArray=[2, 2]))
     d.add(String(plot.x + plot.width, 4, "min", fontName=FONT, fontSize=7))
-    d.add(String(0, plot.y + plot.height + 3, "SaO2 %", fontName=FONT, fontSize=7))
+    d.add(String(0, plot.y + plot.height + 3, "SpO2 %", fontName=FONT, fontSize=7))
     return d
 
 
@@ -257,7 +259,7 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
     level = Table(
         [
             [
-                _p(f"Level {r.level} of 4: {r.label}", st["level"]),
+                _p(level_heading(r.level), st["level"]),
                 _p(f"index {r.index:.2f} (ranks risk; not a probability)", st["body"]),
             ]
         ],
@@ -275,7 +277,7 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
     )
     add(level)
     if r.overrides:
-        add(_p("Forced to level 4 by: " + ", ".join(r.overrides), st["caution"]))
+        add(_p("Forced to airway level 4 by: " + ", ".join(r.overrides), st["caution"]))
     present = [f for f in r.factors if f.present and f.role != "preparation"]
     largest = max((f.contribution for f in present), default=0.0)
     bar_w = width * 0.16
@@ -295,7 +297,10 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
     add(
         KeepTogether(
             [
-                _p("Why this level: each factor, its weight, what it adds, its source", st["h2"]),
+                _p(
+                    "Why this airway level: each factor, its weight, what it adds, its source",
+                    st["h2"],
+                ),
                 _grid(
                     rows, [width * 0.33, width * 0.12, width * 0.09, bar_w + 4, width * 0.30 - 4]
                 ),
@@ -377,13 +382,10 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
     for df in dec.factors:
         pts = "" if df.points_to == "unknown" else f" {df.points:+d}"
         dec_rows.append([_p(df.name, small), _p(df.finding, small), f"{df.points_to}{pts}"])
-    extra = (
-        "By urgency category: " + ", ".join(f"{k}: {v}" for k, v in dec.if_category.items()) + ". "
-        if dec.if_category
-        else ""
-    )
+    extra = by_category_text(dec.if_category).capitalize() + ". " if dec.if_category else ""
     decision = [
-        _p(f"If intubation fails: {dec.headline}", st["h2"]),
+        _p(DECISION_TITLE, st["h2"]),
+        _p(f"Pre-made decision: {dec.headline}", st["caution"]),
         _grid(dec_rows, [half * 0.4, half * 0.4, half * 0.2]),
         _p("Final decision, ticked before induction: ☐ wake  ☐ proceed", st["body"]),
         _p("Signed: ____________________", st["body"]),

@@ -11,10 +11,11 @@ from __future__ import annotations
 import textwrap
 
 from .body import BODY_FORMULA_WARNING
+from .decision import DECISION_TITLE, by_category_text
 from .doses import SCALAR_LABEL, Dose, dose_text
 from .oxygenation import Oxygenation
 from .plan_model import Plan
-from .scoring import FactorResult
+from .scoring import FactorResult, level_heading, thresholds_text
 from .sources import source_label
 
 WIDTH = 80
@@ -23,7 +24,7 @@ _KIND = {
     "relative_risk": "RR",
     "likelihood_ratio": "LR+",
     "odds_ratio_per_unit": "OR/unit",
-    "project_ratio": "ratio*",
+    "project_ratio": "assumed ratio",
 }
 
 
@@ -42,9 +43,9 @@ def _heading(title: str) -> list[str]:
 
 
 def weight_text(f: FactorResult) -> str:
-    """How a factor's weight reads: 'RR 7.58', 'OR/unit 1.06', 'forces level 4'."""
+    """How a factor's weight reads: 'RR 7.58', 'OR/unit 1.06', 'forces airway level 4'."""
     if f.role == "override":
-        return "forces level 4"
+        return "forces airway level 4"
     if f.role == "preparation" or f.weight is None:
         return "preparation"
     return f"{_KIND[f.kind]} {f.weight:g}"
@@ -78,25 +79,24 @@ def _header(plan: Plan) -> list[str]:
 def _factor_lines(f: FactorResult, detail: bool) -> list[str]:
     name = f"{f.label} ({f.detail})" if detail and f.detail else f.label
     src = f"{weight_text(f)}, {source_label(f.source, f.basis, short=True)}"
-    return _wrap(f"{name}; {src}", " " * 9, f"  +{f.contribution:5.2f}  ")
+    # An override adds nothing to the index: it shows the rule, not "+ 0.00".
+    first = "   rule  " if f.role == "override" else f"  +{f.contribution:5.2f}  "
+    return _wrap(f"{name}; {src}", " " * 9, first)
 
 
 def _risk(plan: Plan) -> list[str]:
     r = plan.risk
-    lo, mid, hi = r.thresholds
-    lines = _heading(f"Level {r.level} of 4: {r.label}")
-    lines.append(
-        f"  index {r.index:.2f} (level 2 from {lo:.2f}, 3 from {mid:.2f}, 4 from {hi:.2f})"
-    )
+    lines = _heading(level_heading(r.level))
+    lines += _wrap(f"index {r.index:.2f} ({thresholds_text(r.thresholds)})")
     if r.overrides:
-        lines.append("  forced to level 4 by: " + ", ".join(r.overrides))
+        lines += _wrap("forced to airway level 4 by: " + ", ".join(r.overrides))
     present = [f for f in r.factors if f.present and f.role != "preparation"]
     if not present:
         lines.append("  no risk factor found among those assessed")
     for f in present:
         lines += _factor_lines(f, detail=True)
     if any(f.kind == "project_ratio" and f.present for f in r.factors):
-        lines += _wrap("ratio* = no published figure: a project rule, shown as such.")
+        lines += _wrap("An assumed ratio has no published figure behind it: a project rule.")
     lines += _wrap(r.note)
     return lines
 
@@ -145,11 +145,11 @@ def oxygenation_lines(oxy: Oxygenation) -> list[str]:
     """The scenarios side by side, with the model's inputs and its uncertainty."""
     h = oxy.horizon_minutes
     lines = _heading("Oxygenation during apnoea (model estimate)")
-    lines.append(f"  {'scenario':<46} {'to SpO2 90%':>12} {'to 80%':>9}")
+    lines.append(f"  {'scenario':<42} {'to SpO2 90%':>12} {'to SpO2 80%':>12}")
     for s in oxy.scenarios:
         lines.append(
-            f"  {s.label[:46]:<46} {minutes_text(s.minutes_to_spo2_90, h):>12} "
-            f"{minutes_text(s.minutes_to_spo2_80, h):>9}"
+            f"  {s.label[:42]:<42} {minutes_text(s.minutes_to_spo2_90, h):>12} "
+            f"{minutes_text(s.minutes_to_spo2_80, h):>12}"
         )
     i = oxy.inputs
     lines += _wrap(
@@ -208,15 +208,14 @@ def _doses(plan: Plan) -> list[str]:
 
 def _decision(plan: Plan) -> list[str]:
     d = plan.decision
-    lines = _heading(f"If intubation fails: {d.headline}")
+    lines = _heading(DECISION_TITLE)
+    lines += _wrap(f"Pre-made decision: {d.headline}")
     for f in d.factors:
         sign = f"{f.points:+d}" if f.points_to != "unknown" else " ?"
         derived = " (derived)" if f.derived else ""
         lines += _wrap(f"{sign:>3} {f.points_to:<8} {f.name}: {f.finding}{derived}", " " * 15, "  ")
     if d.if_category:
-        lines += _wrap(
-            "by urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
-        )
+        lines += _wrap(by_category_text(d.if_category))
     lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
     for c in d.conditions:
         lines += _wrap(c, "    ", "  - ")
@@ -259,13 +258,13 @@ def _compact(plan: Plan) -> list[str]:
     r, e, d = plan.risk, plan.equipment, plan.decision
     t = e.tracheal_tube_mm
     lines = [
-        f"LEVEL {r.level} of 4: {r.label}",
+        level_heading(r.level).upper(),
         f"  index {r.index:.2f} (ranks risk; not a probability)",
     ]
     if r.overrides:
         forcing = [f for f in r.factors if f.present and f.role == "override"]
         lines += _wrap(
-            "forced to level 4 by: " + "; ".join(f"{f.label}: {f.prepares}" for f in forcing)
+            "forced to airway level 4 by: " + "; ".join(f"{f.label}: {f.prepares}" for f in forcing)
         )
     present = [f for f in r.factors if f.present and f.role == "difficulty"]
     for f in present:
@@ -295,7 +294,8 @@ def _compact(plan: Plan) -> list[str]:
         name = dose.label.split(" (")[0]
         scale = f"{SCALAR_LABEL[dose.scalar].split()[0]} {dose.scalar_weight_kg:g} kg"
         lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
-    lines += ["", f"IF INTUBATION FAILS: {d.headline}"]
+    lines += ["", DECISION_TITLE.upper()]
+    lines += _wrap(f"Pre-made decision: {d.headline}")
     for direction in ("proceed", "wake", "neither", "unknown"):
         names = [
             f"{f.name.split(' (')[0].lower()} {f.points:+d}"
@@ -307,9 +307,7 @@ def _compact(plan: Plan) -> list[str]:
         if names:
             lines += _wrap(f"{direction}: " + ", ".join(names), "    ", "  ")
     if d.if_category:
-        lines += _wrap(
-            "by urgency category: " + ", ".join(f"{k}: {v}" for k, v in d.if_category.items())
-        )
+        lines += _wrap(by_category_text(d.if_category))
     lines.append("  Final decision, ticked before induction:  [ ] wake   [ ] proceed")
     lines.append("SEQUENCE")
     shown = [s for s in plan.steps if s.id not in _COMPACT_SKIP]
@@ -337,7 +335,7 @@ def render_text(plan: Plan, compact: bool = False) -> str:
         lines += (
             _risk(plan)
             + _not_assessed(plan)
-            + _bullets("Prepare because of", plan.preparation)
+            + _bullets("Extra preparation for her findings", plan.preparation)
             + _body(plan)
             + oxygenation_lines(plan.oxygenation)
             + _equipment(plan)
@@ -345,7 +343,7 @@ def render_text(plan: Plan, compact: bool = False) -> str:
             + _decision(plan)
             + _steps(plan)
             + _checklists(plan)
-            + _bullets("Check", plan.warnings)
+            + _bullets("Warnings: check these before relying on the plan", plan.warnings)
             + _bullets("Cautions", plan.cautions)
         )
     return "\n".join(line.rstrip() for line in lines) + "\n"

@@ -25,12 +25,28 @@ from .sources import SOURCES, Evidence
 LEVEL_THRESHOLDS: tuple[float, float, float] = (math.log(3), math.log(10), math.log(30))
 LEVEL_EVIDENCE = Evidence("project", "project_rule", "combined ratio 3 / 10 / 30")
 
+# Each label uses words no other level uses, so that a level heard over a phone or
+# read at a glance cannot be mistaken for its neighbour.
 LEVEL_LABELS: dict[int, str] = {
-    1: "Routine precautions",
-    2: "Heightened precautions",
-    3: "Difficulty anticipated",
-    4: "Difficulty expected: senior-led plan",
+    1: "standard care",
+    2: "extra vigilance",
+    3: "difficulty likely",
+    4: "senior-led plan",
 }
+
+
+def level_heading(level: int) -> str:
+    """'Airway level 3 of 4: difficulty likely': never a bare number, which a listener
+    could take for a Mallampati class, a laryngoscopy grade or an urgency category."""
+    return f"Airway level {level} of 4: {LEVEL_LABELS[level]}"
+
+
+def thresholds_text(thresholds: tuple[float, float, float]) -> str:
+    """Where each level starts on the index, every level named in full."""
+    return ", ".join(
+        f"airway level {n} from {t:.2f}" for n, t in zip((2, 3, 4), thresholds, strict=True)
+    )
+
 
 INDEPENDENCE_NOTE = (
     "The index adds log ratios as if the factors were independent; they are not, "

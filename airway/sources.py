@@ -27,9 +27,18 @@ Basis = Literal["published", "from_memory", "common_practice", "project_rule"]
 
 BASIS_LABEL: dict[str, str] = {
     "published": "published",
-    "from_memory": "from memory of the source",
+    "from_memory": "figure not yet checked against the paper",
     "common_practice": "common practice, no single source",
     "project_rule": "project rule, no published figure",
+}
+
+
+# For tables and one-line factor rows.
+SHORT_BASIS_LABEL: dict[str, str] = {
+    "published": "published",
+    "from_memory": "not checked against the paper",
+    "common_practice": "common practice",
+    "project_rule": "project rule",
 }
 
 
@@ -62,7 +71,7 @@ _SELF_DESCRIBING = ("project", "common_practice")
 
 def source_label(source: str, basis: str, short: bool = False) -> str:
     """'Rocke 1992 [published]', or just the basis for a rule or common practice."""
-    label = BASIS_LABEL[basis] if not short else basis.replace("_", " ")
+    label = (BASIS_LABEL if not short else SHORT_BASIS_LABEL)[basis]
     if source in _SELF_DESCRIBING:
         return label
     return f"{SOURCES[source].short} [{label}]"

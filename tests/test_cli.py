@@ -8,6 +8,7 @@ import sys
 from pathlib import Path
 
 import pytest
+from typer.testing import CliRunner
 
 from airway.cli import app
 
@@ -150,7 +151,7 @@ def test_quick_same_plan_as_file(runner, tmp_path: Path) -> None:
             "3",
             "--preeclampsia",
             "with_severe_features",
-            "--sign",
+            "--signs",
             "voice_change",
             "-f",
             "json",
@@ -159,8 +160,32 @@ def test_quick_same_plan_as_file(runner, tmp_path: Path) -> None:
     assert json.loads(a) == json.loads(b)
 
 
+@pytest.mark.parametrize(
+    ("old", "new"),
+    [
+        (["--category", "1"], ["--urgency-category", "1"]),
+        (["--sign", "stridor"], ["--signs", "stridor"]),
+        (["--age", "31"], ["--age-years", "31"]),
+    ],
+)
+def test_quick_old_option_spellings_still_work(runner, old, new) -> None:
+    base = ["quick", "--weight-kg", "80", "-f", "json"]
+    a, b = runner.invoke(app, base + old), runner.invoke(app, base + new)
+    assert a.exit_code == b.exit_code == 0, a.output + b.output
+    assert json.loads(a.stdout) == json.loads(b.stdout)
+    help_text = runner.invoke(app, ["quick", "--help"], env={"COLUMNS": "80"}).stdout
+    assert f"{old[0]} " not in help_text  # hidden: only the new name is offered
+
+
+def test_quick_old_and_new_spelling_disagreeing_exit_2(runner) -> None:
+    r = runner.invoke(
+        app, ["quick", "--weight-kg", "80", "--category", "1", "--urgency-category", "2"]
+    )
+    assert r.exit_code == 2 and "--urgency-category" in r.stderr
+
+
 def test_quick_bad_flag_exit_2(runner) -> None:
-    r = runner.invoke(app, ["quick", "--weight-kg", "98", "--sign", "hoarse"])
+    r = runner.invoke(app, ["quick", "--weight-kg", "98", "--signs", "hoarse"])
     assert r.exit_code == 2 and "voice_change" in r.stderr
 
 
@@ -192,7 +217,8 @@ def test_stdin(runner) -> None:
 def test_factors_schema_version(runner) -> None:
     r = runner.invoke(app, ["factors"])
     assert r.exit_code == 0 and "mallampati_4" in r.stdout and "Rocke 1992" in r.stdout
-    rows = json.loads(runner.invoke(app, ["factors", "--json"]).stdout)
+    rows = json.loads(runner.invoke(app, ["factors", "-f", "json"]).stdout)
+    assert json.loads(runner.invoke(app, ["factors", "--json"]).stdout) == rows  # old spelling
     assert {r["id"] for r in rows} >= {"mallampati_2", "bmi", "stridor"}
     schema = json.loads(runner.invoke(app, ["schema"]).stdout)
     assert schema["additionalProperties"] is False and "patient" in schema["required"]
@@ -209,3 +235,42 @@ def test_start_up_does_not_import_reportlab() -> None:
         "sys.exit('reportlab' in sys.modules)"
     )
     assert subprocess.run([sys.executable, "-c", code]).returncode == 0
+
+
+COMMANDS = ("", "plan", "quick", "oxygen", "sheet", "factors", "schema")
+
+
+@pytest.mark.parametrize("name", COMMANDS)
+def test_help_reads_whole_at_80_columns(runner, name: str) -> None:
+    """Every option name is printed in full and no line is longer than 80 columns."""
+    from typer.main import get_command
+
+    args = [name, "--help"] if name else ["--help"]
+    r = runner.invoke(app, args, env={"COLUMNS": "80"}, terminal_width=80)
+    assert r.exit_code == 0, r.output
+    lines = r.stdout.splitlines()
+    assert max(map(len, lines)) <= 80
+    body = "\n".join(line for line in lines if not line.startswith("Usage:"))
+    assert "…" not in body and "..." not in body  # nothing cut short
+    group = get_command(app)
+    cmd = group.commands[name] if name else group  # type: ignore[attr-defined]
+    for param in cmd.params:
+        if not getattr(param, "hidden", False):
+            for opt in (*param.opts, *param.secondary_opts):
+                if opt.startswith("-"):
+                    assert opt in r.stdout, (name, opt)
+
+
+def test_quick_help_groups_options_by_examination() -> None:
+    result = CliRunner().invoke(app, ["quick", "--help"], env={"COLUMNS": "80"})
+    headings = [line for line in result.stdout.splitlines() if line.endswith(":")]
+    assert headings[:8] == [
+        "Patient:",
+        "Airway:",
+        "History:",
+        "Pre-eclampsia:",
+        "Context:",
+        "Output:",
+        "Unit files:",
+        "Options:",
+    ]

@@ -35,7 +35,7 @@ def test_pdf_carries_the_json_plan_values(path: Path, tmp_path: Path) -> None:
     t = data["equipment"]["tracheal_tube_mm"]
     assert f"tubes {t['first']:.1f} / {t['backup']:.1f} / {t['smallest']:.1f} mm" in text
     assert f"supraglottic {data['equipment']['supraglottic_size']:g}" in text
-    assert f"Level {data['risk']['level']} of 4" in text
+    assert f"Airway level {data['risk']['level']} of 4" in text
     for d in plan.doses:
         assert " ".join(dose_text(d).split()) in text, d.drug
     for caution in data["cautions"]:
