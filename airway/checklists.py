@@ -25,6 +25,8 @@ are not allowed.
 from __future__ import annotations
 
 import functools
+import hashlib
+import json
 import re
 import tomllib
 from collections.abc import Callable
@@ -290,9 +292,47 @@ def _shipped_texts() -> tuple[tuple[str, tuple[str, str]], ...]:
     )
 
 
+# The shipped checklists, already parsed, keyed by the SHA-256 of their text. Reading
+# it spares the Markdown parser's import and work on every command (about 40 ms); an
+# entry whose digest does not match its file is ignored and the file is parsed, so
+# the cache can make a command faster but never different. Rewrite it with
+# ``python -m airway.checklists`` after editing a shipped checklist
+# (tests/test_checklists.py fails while it is stale).
+CACHE_FILE = "parsed-cache.json"
+
+
+def _digest(text: str) -> str:
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+@functools.cache
+def _shipped_cache() -> dict[str, Any]:
+    try:
+        raw = resources.files("airway").joinpath("data/checklists", CACHE_FILE).read_text("utf-8")
+        cache = json.loads(raw)
+    except (OSError, ValueError):
+        return {}
+    return cache if isinstance(cache, dict) else {}
+
+
 @functools.cache
 def _parsed(text: str, name: str) -> Checklist:
+    entry = _shipped_cache().get(name)
+    if isinstance(entry, dict) and entry.get("sha256") == _digest(text):
+        try:
+            return Checklist.model_validate(entry["checklist"])
+        except ValidationError:
+            pass  # a cache from another version of the model: parse instead
     return parse_checklist(text, name)
+
+
+def shipped_cache_text() -> str:
+    """The cache file's content for the shipped checklists as they are now."""
+    entries = {
+        name: {"sha256": _digest(text), "checklist": parse_checklist(text, name).model_dump()}
+        for _key, (name, text) in _shipped_texts()
+    }
+    return json.dumps(entries, indent=1, sort_keys=True, ensure_ascii=False) + "\n"
 
 
 def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
@@ -306,7 +346,10 @@ def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
         if not folder.is_dir():
             raise ChecklistError(str(folder), None, "not a folder")
         for f in sorted(folder.glob("*.md")):
-            found[f.name] = (str(f), f.read_text("utf-8"))
+            try:
+                found[f.name] = (str(f), f.read_text("utf-8"))
+            except UnicodeDecodeError:
+                raise ChecklistError(str(f), None, "is not UTF-8 text") from None
     return tuple(_parsed(text, name) for _key, (name, text) in sorted(found.items()))
 
 
@@ -370,3 +413,9 @@ def generic(checklist: Checklist, front_of_neck_tube_mm: float) -> RenderedCheck
             for s in checklist.sections
         ),
     )
+
+
+if __name__ == "__main__":  # python -m airway.checklists: rewrite the shipped cache
+    target = Path(__file__).parent / "data" / "checklists" / CACHE_FILE
+    target.write_text(shipped_cache_text(), encoding="utf-8")
+    print(f"wrote {target}")

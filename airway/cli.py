@@ -6,6 +6,7 @@ other failure. Data goes to stdout, messages to stderr.
 
 from __future__ import annotations
 
+import gc
 import json
 import sys
 from collections.abc import Iterator
@@ -495,4 +496,8 @@ def schema() -> None:
 
 def main() -> None:
     """Console-script entry point."""
+    # One command, then the process ends: cyclic garbage collection would only cost
+    # start-up time (pydantic builds many objects). Reference counting still frees
+    # memory; the library itself never changes the collector.
+    gc.disable()
     app(prog_name="airway")

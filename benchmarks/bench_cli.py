@@ -1,12 +1,21 @@
-"""Benchmark: wall time of the commands a user runs, in fresh processes.
+"""Benchmark: wall time of the commands a user runs, in fresh processes, against two floors.
 
 Run: python benchmarks/bench_cli.py [repeats]
-Prints the median of each command and its ratio to `airway --version` (the
-interpreter and start-up floor), all measured in the same run.
+
+Two floors are measured in the same run, interleaved with the commands so that a
+noisy, shared machine slows them alike:
+
+- terminal floor: a bare two-command typer app that validates one pydantic model;
+- PDF floor: a bare script that imports typer, pydantic and reportlab, registers
+  DejaVu Sans and builds a one-page table document.
+
+Targets: ``airway quick`` to the terminal at most 1.3 x the terminal floor;
+``airway quick --pdf`` at most 1.15 x the PDF floor. Prints medians and ratios.
 """
 
 from __future__ import annotations
 
+import os
 import shutil
 import statistics
 import subprocess
@@ -17,33 +26,122 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 
+TERMINAL_FLOOR = '''
+import typer
+from pydantic import BaseModel, Field
 
-def _median_s(args: list[str], repeat: int) -> float:
-    samples = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        subprocess.run(args, check=True, capture_output=True)
-        samples.append(time.perf_counter() - start)
-    return statistics.median(samples)
+app = typer.Typer(add_completion=False)
+
+
+class Finding(BaseModel):
+    weight_kg: float = Field(ge=30, le=300)
+
+
+@app.command()
+def quick(weight_kg: float = typer.Option(...)) -> None:
+    print(Finding(weight_kg=weight_kg))
+
+
+@app.command()
+def other() -> None:
+    pass
+
+
+app()
+'''
+
+PDF_FLOOR = '''
+import io
+import sys
+
+import typer
+from pydantic import BaseModel, Field
+from reportlab.lib.pagesizes import A4
+from reportlab.pdfbase import pdfmetrics
+from reportlab.pdfbase.ttfonts import TTFont
+from reportlab.platypus import SimpleDocTemplate, Table
+
+app = typer.Typer(add_completion=False)
+
+
+class Finding(BaseModel):
+    weight_kg: float = Field(ge=30, le=300)
+
+
+@app.command()
+def quick(weight_kg: float = typer.Option(...), pdf: str = typer.Option(...)) -> None:
+    Finding(weight_kg=weight_kg)
+    pdfmetrics.registerFont(TTFont("DejaVuSans", FONT))
+    buf = io.BytesIO()
+    doc = SimpleDocTemplate(buf, pagesize=A4)
+    rows = [[f"row {i}", "value", "more"] for i in range(30)]
+    table = Table(rows)
+    table.setStyle([("FONTNAME", (0, 0), (-1, -1), "DejaVuSans")])
+    doc.build([table])
+    with open(pdf, "wb") as f:
+        f.write(buf.getvalue())
+
+
+@app.command()
+def other() -> None:
+    pass
+
+
+app()
+'''
+
+TARGETS = {"quick (terminal)": ("terminal floor", 1.3), "quick --pdf": ("PDF floor", 1.15)}
+
+
+def _font() -> str:
+    for folder in (os.environ.get("AIRWAY_FONT_DIR", ""), "/usr/share/fonts/truetype/dejavu"):
+        path = Path(folder, "DejaVuSans.ttf")
+        if folder and path.is_file():
+            return str(path)
+    sys.exit("DejaVu Sans not found (fonts-dejavu-core or AIRWAY_FONT_DIR)")
 
 
 def main() -> None:
-    repeat = int(sys.argv[1]) if len(sys.argv) > 1 else 7
+    repeat = int(sys.argv[1]) if len(sys.argv) > 1 else 15
     exe = shutil.which("airway") or "airway"
     out = Path(tempfile.mkdtemp())
+    (out / "terminal_floor.py").write_text(TERMINAL_FLOOR)
+    (out / "pdf_floor.py").write_text(PDF_FLOOR.replace("FONT))", f"{_font()!r}))"))
     example = str(ROOT / "examples" / "severe-preeclampsia-category1.toml")
+    py = sys.executable
     commands = {
-        "airway --version": [exe, "--version"],
-        "airway quick --weight-kg 98 (one screen)": [exe, "quick", "--weight-kg", "98"],
-        "airway plan FILE (text)": [exe, "plan", example],
-        "airway plan FILE --pdf": [exe, "plan", example, "--pdf", str(out / "p.pdf"), "--force"],
-        "airway sheet doses": [exe, "sheet", "doses", "-o", str(out / "d.pdf"), "--force"],
+        "terminal floor": [py, str(out / "terminal_floor.py"), "quick", "--weight-kg", "90"],
+        "PDF floor": [
+            py,
+            str(out / "pdf_floor.py"),
+            "quick",
+            "--weight-kg",
+            "90",
+            "--pdf",
+            str(out / "floor.pdf"),
+        ],
+        "quick (terminal)": [exe, "quick", "--weight-kg", "90"],
+        "quick --pdf": [exe, "quick", "--weight-kg", "90", "--pdf", str(out / "q.pdf"), "--force"],
+        "plan FILE (text)": [exe, "plan", example],
+        "plan FILE --pdf": [exe, "plan", example, "--pdf", str(out / "p.pdf"), "--force"],
+        "sheet doses": [exe, "sheet", "doses", "-o", str(out / "d.pdf"), "--force"],
     }
-    floor = None
-    for name, args in commands.items():
-        median = _median_s(args, repeat)
-        floor = floor or median
-        print(f"{name:<42} median {median * 1000:6.0f} ms   x{median / floor:4.1f}")
+    samples: dict[str, list[float]] = {name: [] for name in commands}
+    for name, args in commands.items():  # warm the file cache once
+        subprocess.run(args, check=True, capture_output=True)
+    for _ in range(repeat):
+        for name, args in commands.items():
+            start = time.perf_counter()
+            subprocess.run(args, check=True, capture_output=True)
+            samples[name].append(time.perf_counter() - start)
+    median = {name: statistics.median(s) for name, s in samples.items()}
+    print(f"{repeat} runs each, interleaved; medians")
+    print(f"{'command':<22} {'median':>9}  {'ratio to floor':<26} target")
+    for name, m in median.items():
+        floor, target = TARGETS.get(name, ("terminal floor", None))
+        ratio = m / median[floor]
+        verdict = "" if target is None else f"<= {target:g}  {'ok' if ratio <= target else 'MISSED'}"
+        print(f"{name:<22} {m * 1000:7.0f} ms  x{ratio:4.2f} of {floor:<18} {verdict}")
 
 
 if __name__ == "__main__":

@@ -15,6 +15,7 @@ from airway.checklists import (
     load_checklists,
     parse_checklist,
 )
+from airway.cli import app
 from airway.errors import ChecklistError
 
 from .conftest import make
@@ -162,3 +163,34 @@ def test_example_unit_folder_parses_and_applies() -> None:
     lists = {c.meta.sheet: c for c in load_checklists(paths.checklists)}
     assert "example unit" in lists["after"].meta.title
     assert load_contacts(paths.contacts)[0].number == "bleep 0000"
+
+
+def test_shipped_parse_cache_is_fresh() -> None:
+    """After editing a shipped checklist, run `python -m airway.checklists`."""
+    from importlib import resources
+
+    from airway.checklists import CACHE_FILE, shipped_cache_text
+
+    shipped = resources.files("airway").joinpath("data/checklists", CACHE_FILE)
+    assert shipped.read_text("utf-8") == shipped_cache_text()
+
+
+def test_cache_entry_used_only_when_its_digest_matches(monkeypatch) -> None:
+    from airway import checklists
+
+    text = "---\ntitle = 'T'\nuse = ['plan']\nsheet = 'brief'\n---\n\n# S\n\n- [ ] real item\n"
+    cached = checklists.parse_checklist(text.replace("real item", "cached item"), "x.md")
+    entry = {"sha256": checklists._digest(text), "checklist": cached.model_dump()}
+    stale = {"sha256": "0" * 64, "checklist": cached.model_dump()}
+    for cache, expected in (({"x.md": entry}, "cached item"), ({"x.md": stale}, "real item")):
+        checklists._parsed.cache_clear()
+        monkeypatch.setattr(checklists, "_shipped_cache", lambda c=cache: c)
+        got = checklists._parsed(text, "x.md")
+        assert got.sections[0].items[0].text == expected
+    checklists._parsed.cache_clear()
+
+
+def test_unit_checklist_not_utf8_exit_2(runner, tmp_path) -> None:
+    (tmp_path / "10-team-brief.md").write_bytes(b"\xff\xfe not utf-8")
+    r = runner.invoke(app, ["plan", "--demo", "--checklists", str(tmp_path)])
+    assert r.exit_code == 2 and "not UTF-8" in r.stderr and "Traceback" not in r.output

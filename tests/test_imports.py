@@ -59,3 +59,25 @@ def test_plan_and_checklists_one_way() -> None:
     graph = _graph()
     assert "checklists" in graph["plan"]
     assert "plan" not in graph["checklists"]
+
+
+def test_quick_to_the_terminal_imports_no_pdf_markdown_or_rich_code() -> None:
+    """The emergency path stays light: reportlab only for a PDF, markdown-it only for a
+    unit's own checklists (the shipped ones come from their parse cache), rich never."""
+    import subprocess
+    import sys
+
+    code = (
+        "import sys, io, contextlib\n"
+        "sys.argv = ['airway', 'quick', '--weight-kg', '90']\n"
+        "from airway.cli import main\n"
+        "with contextlib.redirect_stdout(io.StringIO()):\n"
+        "    try:\n"
+        "        main()\n"
+        "    except SystemExit:\n"
+        "        pass\n"
+        "heavy = [m for m in ('reportlab', 'markdown_it', 'rich') if m in sys.modules]\n"
+        "print(' '.join(heavy))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == ""
