@@ -204,12 +204,11 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
         factors=factors,
         if_category=if_category,
         conditions=(
-            "Proceed only while the supraglottic airway (or face mask) gives adequate "
-            "oxygenation and ventilation; if it does not, wake her.",
-            "Re-judge after failure: a second-generation device with good ventilation "
-            "supports proceeding; oedema, bleeding, trauma or difficult ventilation "
-            "support waking.",
-            "If oxygenation fails: can't intubate, can't oxygenate: front-of-neck access.",
+            "Proceed only while the supraglottic airway or face mask oxygenates and "
+            "ventilates her well; otherwise wake her.",
+            "Judge again once it has failed: good ventilation through a second-generation "
+            "device favours going on; oedema, bleeding, trauma or poor ventilation favour waking.",
+            "Oxygenation failing: can't intubate, can't oxygenate: front-of-neck access.",
         ),
         basis=(
             FACTOR_LIST_EVIDENCE.describe(),

@@ -76,8 +76,8 @@ DRUGS: tuple[Drug, ...] = (
         Evidence("valtonen1989", "published", "obstetric induction trials used 2-2.5 mg/kg"),
         Evidence("nightingale2015", "published", "lean weight for induction in obesity"),
         Evidence("common_practice", "common_practice", "1% emulsion"),
-        note="Sources disagree: lean-weight dosing was often insufficient "
-        "(Subramani 2017); 2 mg/kg adjusted weight has also been used. Titrate to effect.",
+        note="Sources disagree: lean-weight doses were often too small (Subramani 2017); "
+        "2 mg/kg adjusted weight has also been used. Titrate.",
     ),
     Drug(
         "thiopental",
@@ -91,7 +91,7 @@ DRUGS: tuple[Drug, ...] = (
         Evidence("common_practice", "common_practice", "obstetric doses of 4-5 mg/kg"),
         Evidence("nightingale2015", "published", "lean weight in obesity"),
         Evidence("common_practice", "common_practice", "2.5% solution"),
-        note="Higher awareness risk than propofol (AAGBI/SOBA 2015).",
+        note="More awareness than with propofol (AAGBI/SOBA 2015).",
     ),
     Drug(
         "suxamethonium",
@@ -105,8 +105,7 @@ DRUGS: tuple[Drug, ...] = (
         Evidence("elorbany2010", "published", "1-1.5 mg/kg for rapid sequence induction"),
         Evidence("lemmens2006", "published", "total weight, also in obesity"),
         Evidence("common_practice", "common_practice", "50 mg/mL ampoules; check local stock"),
-        note="Desaturation comes before recovery from 1 mg/kg (Benumof 1997): "
-        "do not plan on waiting for it to wear off.",
+        note="Saturation falls before 1 mg/kg wears off (Benumof 1997): never plan to wait for it.",
     ),
     Drug(
         "rocuronium",
@@ -124,8 +123,7 @@ DRUGS: tuple[Drug, ...] = (
             "lean weight in obesity, never total weight (prolongs the block)",
         ),
         Evidence("common_practice", "common_practice", "10 mg/mL"),
-        note="Sources disagree on the scalar in obesity: lean weight (AAGBI/SOBA 2015) "
-        "or ideal weight (Leykin 2004).",
+        note="Scalar in obesity disputed: lean (AAGBI/SOBA 2015) or ideal weight (Leykin 2004).",
     ),
     Drug(
         "sugammadex",
@@ -143,8 +141,7 @@ DRUGS: tuple[Drug, ...] = (
         ),
         Evidence("sugammadex_label", "from_memory", "actual body weight"),
         Evidence("sugammadex_label", "published", "100 mg/mL"),
-        note="Draw up and keep ready whenever rocuronium is used. Reversal does not "
-        "restore the airway: it only allows spontaneous breathing.",
+        note="Drawn up whenever rocuronium is used. It restores breathing, not the airway.",
     ),
 )
 
@@ -180,6 +177,19 @@ class Dose(BaseModel):
     alternatives: tuple[Alternative, ...]
     basis: str
     note: str
+    # Set when the dose is held at its BMI-30 value (CONTINUITY_EVIDENCE): the
+    # sentence that says so, and the guideline's scalar that would have given less.
+    rule: str = ""
+    held_from_scalar: str | None = None
+
+
+def held_rule_text(floor_kg: float) -> str:
+    """The one sentence that explains a held dose."""
+    return (
+        f"Held at the dose for BMI 30 at her height ({floor_kg:.1f} kg), because the "
+        "guideline's lighter scalar would give a heavier woman less than a lighter one "
+        "(project rule); the guideline's dose is listed as an alternative."
+    )
 
 
 def dose_text(d: Dose) -> str:
@@ -231,18 +241,13 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
     scaled = kg is not None
     note = drug.note
     alternatives: list[Alternative] = []
-    held = False
+    rule, held_from = "", None
     if obese and kg is not None and body.height_cm is not None and wanted != "total":
         floor = boundary_weight_kg(body.height_cm)
         if kg < floor:
             alternatives.append(_alternative(low, high, wanted, kg, drug.scalar_evidence.source))
-            note = (
-                f"Held at the dose for BMI 30 at her height ({floor:.1f} kg): on "
-                f"{SCALAR_LABEL[wanted]} ({kg:.1f} kg) a heavier woman would get less than "
-                "a lighter one (project rule); the guideline's dose is shown as an "
-                "alternative. " + note
-            ).strip()
-            wanted, kg, held = "boundary", floor, True
+            rule, held_from = held_rule_text(floor), wanted
+            wanted, kg = "boundary", floor
     if body.bmi is None and drug.scalar_obese != "total":
         scaled = False
         note = (
@@ -263,7 +268,7 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
         drug.scalar_evidence,
         drug.concentration_evidence,
     )
-    if held:
+    if held_from is not None:
         evidence += (CONTINUITY_EVIDENCE,)
     basis = "; ".join(e.describe() for e in evidence)
     return Dose(
@@ -283,6 +288,8 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
         alternatives=tuple(alternatives),
         basis=basis,
         note=note,
+        rule=rule,
+        held_from_scalar=held_from,
     )
 
 

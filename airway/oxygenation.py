@@ -131,8 +131,8 @@ CONSTANT_EVIDENCE: dict[str, Evidence] = {
 }
 
 UNCERTAINTY = (
-    "Desaturation times are a model estimate, not a guarantee: real times vary widely; "
-    "act on the saturation, never the clock."
+    "Desaturation times are a model estimate, not a guarantee, and real times vary "
+    "widely: act on the saturation, never the clock."
 )
 
 

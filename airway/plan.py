@@ -67,8 +67,8 @@ CAUTION_REASSESS = (
 )
 CAUTION_DOSES = "Doses are a calculation aid: check every dose and titrate to effect."
 CAUTION_WEAK_TESTS = (
-    "Bedside tests predict poorly in pregnancy (Hirmanpour 2014): a low level does not "
-    "exclude a difficult airway."
+    "Bedside tests predict poorly in pregnancy (Hirmanpour 2014): a low airway level "
+    "does not rule out a difficult airway."
 )
 
 

@@ -111,7 +111,7 @@ def render_markdown(plan: Plan) -> str:
     add("| Drug | Dose | Dosed on | Notes |")
     add("|---|---|---|---|")
     for dose in plan.doses:
-        notes = dose.note
+        notes = f"{dose.rule} {dose.note}".strip()
         for alt in dose.alternatives:
             notes += (
                 f" Alternative: {SCALAR_LABEL[alt.scalar]} {alt.weight_kg:g} kg gives "

@@ -1,20 +1,30 @@
-"""The patient plan as a printable PDF (reportlab platypus).
+"""The patient plan as a printable PDF (reportlab platypus), readable in the notes.
 
-Only this module imports reportlab, and only when a PDF is asked for. Every
-piece of text from the user or the plan is XML-escaped before it reaches
-reportlab's paragraph markup. Output is reproducible: invariant mode fixes the
-dates and the document id, so the same plan gives the same bytes.
+Layout, from the top of page 1: her identifiers, the two cautions, then one
+boxed block with every number needed in the first seconds (airway level, tube
+sizes, supraglottic size, front-of-neck tube, doses in mg and mL, sugammadex,
+minutes to SpO2 90%, the pre-made decision); below it the basis (factors with
+their weights and sources), equipment, oxygenation, the decision's factors,
+the sequence and the unit's checklists. No text is set below
+:data:`MIN_FONT_PT`. Airway levels 1 and 2 fit one page; levels 3 and 4 use
+two at most, the second for the full sequence.
+
+Only this module imports reportlab, and only when a PDF is asked for; the SpO2
+curve is drawn with plain shapes so that reportlab's chart package is never
+loaded. Every piece of text from the user or the plan is XML-escaped before it
+reaches reportlab's paragraph markup. Output is reproducible: invariant mode
+fixes the dates and the document id, so the same plan gives the same bytes.
 """
 
 from __future__ import annotations
 
 import io
 import os
+from collections.abc import Sequence
 from pathlib import Path
 from xml.sax.saxutils import escape
 
-from reportlab.graphics.charts.lineplots import LinePlot
-from reportlab.graphics.shapes import Drawing, Line, Rect, String
+from reportlab.graphics.shapes import Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A4, letter
 from reportlab.lib.styles import ParagraphStyle
@@ -23,20 +33,24 @@ from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.pdfgen.canvas import Canvas
 from reportlab.platypus import (
-    KeepInFrame,
-    KeepTogether,
+    BaseDocTemplate,
+    Frame,
+    FrameBreak,
+    NextPageTemplate,
+    PageBreak,
+    PageTemplate,
     Paragraph,
-    SimpleDocTemplate,
     Spacer,
     Table,
     TableStyle,
 )
+from reportlab.platypus.doctemplate import LayoutError
 
-from .decision import DECISION_TITLE, by_category_text
-from .doses import dose_text
+from .decision import DECISION_TITLE, SHORT, by_category_text
+from .doses import SCALAR_LABEL, Dose
 from .errors import AirwayError
 from .plan_model import Plan, RenderedChecklist
-from .render_text import minutes_text, per_kg_text, weight_text
+from .render_text import minutes_text, weight_text
 from .scoring import level_heading
 from .sources import source_label
 
@@ -52,6 +66,14 @@ INK = colors.HexColor("#111111")
 ACCENT = colors.HexColor("#1F4E79")
 WARN = colors.HexColor("#B35900")
 PALE = colors.HexColor("#E8EEF4")
+
+# The smallest type anywhere on the plan, footer included: notes are read at arm's
+# length, often photocopied (project rule; 8 pt is a common floor for print).
+MIN_FONT_PT = 8.0
+ONE_PAGE_UP_TO_LEVEL = 2  # levels 1-2 on one page; 3-4 on two at most
+BODY_PT = 8.5
+KEY_VALUE_PT = 11.0
+LEVEL_PT = 14.0
 
 
 class FontMissingError(AirwayError):
@@ -76,28 +98,40 @@ def _register_fonts() -> None:
 
 
 def _styles() -> dict[str, ParagraphStyle]:
-    base = ParagraphStyle("body", fontName=FONT, fontSize=8, leading=9.6, textColor=INK)
+    base = ParagraphStyle(
+        "body", fontName=FONT, fontSize=BODY_PT, leading=BODY_PT * 1.2, textColor=INK
+    )
+    small = MIN_FONT_PT
     return {
         "body": base,
-        "small": ParagraphStyle("small", parent=base, fontSize=6.8, leading=7.8),
-        "h1": ParagraphStyle("h1", parent=base, fontName=FONT_BOLD, fontSize=12.5, leading=15),
+        "small": ParagraphStyle("small", parent=base, fontSize=small, leading=small * 1.12),
+        "bold": ParagraphStyle("bold", parent=base, fontName=FONT_BOLD),
+        "h1": ParagraphStyle("h1", parent=base, fontName=FONT_BOLD, fontSize=13, leading=16),
         "h2": ParagraphStyle(
             "h2",
             parent=base,
             fontName=FONT_BOLD,
-            fontSize=9.5,
-            leading=11.5,
-            spaceBefore=3,
-            spaceAfter=1,
+            fontSize=9,
+            leading=10.5,
+            spaceBefore=2,
+            spaceAfter=0.5,
             textColor=ACCENT,
         ),
         "level": ParagraphStyle(
             "level",
             parent=base,
             fontName=FONT_BOLD,
-            fontSize=13,
-            leading=16,
+            fontSize=LEVEL_PT,
+            leading=LEVEL_PT * 1.2,
             textColor=colors.white,
+        ),
+        "key_label": ParagraphStyle("key_label", parent=base, fontSize=small, leading=small * 1.2),
+        "key_value": ParagraphStyle(
+            "key_value",
+            parent=base,
+            fontName=FONT_BOLD,
+            fontSize=KEY_VALUE_PT,
+            leading=KEY_VALUE_PT * 1.2,
         ),
         "caution": ParagraphStyle("caution", parent=base, fontName=FONT_BOLD, textColor=WARN),
     }
@@ -107,15 +141,16 @@ def _p(text: str, style: ParagraphStyle) -> Paragraph:
     return Paragraph(escape(text), style)
 
 
-def _grid(rows: list[list[object]], widths: list[float], header: bool = True) -> Table:
+def _grid(rows: Sequence[Sequence[object]], widths: Sequence[float], header: bool = True) -> Table:
     table = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
     style = [
         ("FONTNAME", (0, 0), (-1, -1), FONT),
-        ("FONTSIZE", (0, 0), (-1, -1), 7),
+        ("FONTSIZE", (0, 0), (-1, -1), MIN_FONT_PT),
+        ("LEADING", (0, 0), (-1, -1), MIN_FONT_PT * 1.12),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LINEBELOW", (0, 0), (-1, -1), 0.25, colors.grey),
-        ("TOPPADDING", (0, 0), (-1, -1), 0.6),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 0.8),
+        ("TOPPADDING", (0, 0), (-1, -1), 0.3),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 0.9),
         ("LEFTPADDING", (0, 0), (-1, -1), 2),
         ("RIGHTPADDING", (0, 0), (-1, -1), 2),
     ]
@@ -134,44 +169,61 @@ def _drawing(width: float, height: float) -> Drawing:
 
 def _bar(value: float, largest: float, width: float) -> Drawing:
     """One horizontal bar: a factor's contribution, scaled to the largest one."""
-    d = _drawing(width, 7)
+    d = _drawing(width, 8)
     length = 0.0 if largest <= 0 else (width - 2) * value / largest
     if length > 0:
-        d.add(Rect(0, 1, length, 5.5, fillColor=ACCENT, strokeColor=None))
+        d.add(Rect(0, 1.5, length, 6, fillColor=ACCENT, strokeColor=None))
     return d
 
 
+def _label(x: float, y: float, text: str, anchor: str = "start") -> String:
+    return String(x, y, text, fontName=FONT, fontSize=MIN_FONT_PT, textAnchor=anchor, fillColor=INK)
+
+
 def _curve(plan: Plan, width: float) -> Drawing:
+    """SpO2 against minutes of apnoea, as assessed, with the 90% line."""
     oxy = plan.oxygenation
-    d = _drawing(width, 66)
-    plot = LinePlot()
-    plot.x, plot.y, plot.width, plot.height = 30, 18, width - 45, 40
-    points = [(t / 60.0, s) for t, s in oxy.curve] or [(0, 100)]
-    plot.data = [points]
-    plot.lines[0].strokeColor = ACCENT
-    plot.lines[0].strokeWidth = 1.5
-    plot.xValueAxis.valueMin = 0
-    plot.xValueAxis.valueMax = max(1.0, points[-1][0])
-    plot.yValueAxis.valueMin = 75
-    plot.yValueAxis.valueMax = 100
-    plot.yValueAxis.valueSteps = [75, 80, 90, 100]
-    for axis in (plot.xValueAxis, plot.yValueAxis):
-        axis.labels.fontName = FONT
-        axis.labels.fontSize = 7
-    d.add(plot)
-    y90 = plot.y + plot.height * (90 - 75) / 25
-    d.add(Line(plot.x, y90, plot.x + plot.width, y90, strokeColor=WARN, strokeDashArray=[2, 2]))
-    d.add(String(plot.x + plot.width, 4, "min", fontName=FONT, fontSize=7))
-    d.add(String(0, plot.y + plot.height + 3, "SpO2 %", fontName=FONT, fontSize=7))
+    height = 54.0
+    d = _drawing(width, height)
+    x0, y0, w, h = 30.0, 14.0, width - 40.0, height - 26.0
+    points = [(t / 60.0, s) for t, s in oxy.curve] or [(0.0, 100.0)]
+    x_max = max(1.0, points[-1][0])
+    lo, hi = 75.0, 100.0
+
+    def xy(minutes: float, spo2: float) -> tuple[float, float]:
+        clipped = min(hi, max(lo, spo2))
+        return x0 + w * minutes / x_max, y0 + h * (clipped - lo) / (hi - lo)
+
+    d.add(Line(x0, y0, x0 + w, y0, strokeColor=INK, strokeWidth=0.5))
+    d.add(Line(x0, y0, x0, y0 + h, strokeColor=INK, strokeWidth=0.5))
+    for value in (75, 80, 90, 100):
+        _x, y = xy(0, value)
+        d.add(Line(x0 - 2, y, x0, y, strokeColor=INK, strokeWidth=0.5))
+        d.add(_label(x0 - 4, y - 2.8, f"{value}", "end"))
+    step = 1 if x_max <= 8 else 2 if x_max <= 16 else 5
+    for minute in range(0, int(x_max) + 1, step):
+        x, _y = xy(minute, lo)
+        d.add(Line(x, y0 - 2, x, y0, strokeColor=INK, strokeWidth=0.5))
+        d.add(_label(x, y0 - 10, f"{minute}", "middle"))
+    _x, y90 = xy(0, 90)
+    d.add(Line(x0, y90, x0 + w, y90, strokeColor=WARN, strokeWidth=0.8, strokeDashArray=[2, 2]))
+    flat: list[float] = []
+    for minutes, spo2 in points:
+        flat.extend(xy(minutes, spo2))
+    d.add(PolyLine(flat, strokeColor=ACCENT, strokeWidth=1.5))
+    d.add(_label(0, y0 + h + 4, "SpO2 % by minutes of apnoea, as assessed (model estimate)"))
     return d
 
 
 class _NumberedCanvas(Canvas):
     """Canvas that knows the page count, for 'page x of y'."""
 
-    def __init__(self, *args: object, footer: str = "", **kwargs: object) -> None:
+    def __init__(
+        self, *args: object, footer: str = "", pages: list[int] | None = None, **kwargs: object
+    ) -> None:
         super().__init__(*args, **kwargs)
         self.footer = footer
+        self.page_count = pages if pages is not None else []
         self._pages: list[dict[str, object]] = []
 
     def showPage(self) -> None:
@@ -180,147 +232,179 @@ class _NumberedCanvas(Canvas):
 
     def save(self) -> None:
         total = len(self._pages)
+        self.page_count.append(total)
         for state in self._pages:
             self.__dict__.update(state)
-            self.setFont(FONT, 7)
+            self.setFont(FONT, MIN_FONT_PT)
             self.setFillColor(INK)
             width = self._pagesize[0]
-            self.drawString(15 * mm, 10 * mm, self.footer)
-            self.drawRightString(width - 15 * mm, 10 * mm, f"page {self._pageNumber} of {total}")
+            self.drawString(10 * mm, 6.5 * mm, self.footer)
+            self.drawRightString(width - 10 * mm, 6.5 * mm, f"page {self._pageNumber} of {total}")
             super().showPage()
         super().save()
 
 
-def _pair(left: object, right: object, width: float, split: float = 0.5) -> Table:
-    """Two blocks side by side."""
-    table = Table([[left, right]], colWidths=[width * split, width * (1 - split)])
+def _short_drug(d: Dose) -> str:
+    return d.label.split(" (")[0]
+
+
+def _key_cell(
+    label: str, value: str, note: str, st: dict[str, ParagraphStyle], *more: str
+) -> list[object]:
+    cell: list[object] = [_p(label, st["key_label"]), _p(value, st["key_value"])]
+    cell += [_p(line, st["key_label"]) for line in (note, *more) if line]
+    return cell
+
+
+# Under the short decision in the key block, when two words need a reason.
+KEY_NOTE = {"balanced": "factors even: senior decides now"}
+
+
+def _key_block(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> Table:
+    """Every number needed in the first seconds, in one box at the top of page 1."""
+    r, e, dec, oxy = plan.risk, plan.equipment, plan.decision, plan.oxygenation
+    t = e.tracheal_tube_mm
+    tone = WARN if r.level >= 3 else ACCENT
+    t90 = minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)
+    quarter = width / 4
+    top = [
+        _p(level_heading(r.level), st["level"]),
+        _key_cell(
+            "SpO2 falls to 90% after apnoea starts",
+            f"in {t90}",
+            "model estimate, not a guarantee" + ("; short: plan for it" if oxy.short else ""),
+            st,
+        ),
+    ]
+    kit = [
+        _key_cell(
+            "Tracheal tubes",
+            f"{t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm",
+            "first / backup / smallest",
+            st,
+        ),
+        _key_cell(
+            "Supraglottic airway",
+            f"size {e.supraglottic_size:g}",
+            f"by weight, {plan.body.weight_kg:g} kg",
+            st,
+        ),
+        _key_cell("Front of neck", f"{e.front_of_neck_tube_mm:.1f} mm", "cuffed tube", st),
+        _key_cell(
+            "Pre-made decision if intubation fails",
+            SHORT[dec.recommendation].upper(),
+            KEY_NOTE.get(dec.recommendation, "")
+            or (by_category_text(dec.if_category) if dec.if_category else ""),
+            st,
+            "final choice: ☐ wake  ☐ proceed",
+        ),
+    ]
+    drugs = [
+        _key_cell(
+            _short_drug(d),
+            f"{_range(d.dose_mg_low, d.dose_mg_high)} mg",
+            f"{_range(d.volume_ml_low, d.volume_ml_high)} mL, {d.mg_per_ml:g} mg/mL",
+            st,
+            _per_kg_short(d),
+        )
+        for d in plan.doses
+    ]
+    first = Table([top], colWidths=[width * 0.56, width * 0.44])
+    kit_table = Table(
+        [kit], colWidths=[quarter * 1.15, quarter * 1.0, quarter * 0.7, quarter * 1.15]
+    )
+    drug_table = Table([drugs], colWidths=[width / len(drugs)] * len(drugs))
+    inner = [
+        ("FONTNAME", (0, 0), (-1, -1), FONT),  # else reportlab starts cells in Helvetica
+        ("VALIGN", (0, 0), (-1, -1), "TOP"),
+        ("LEFTPADDING", (0, 0), (-1, -1), 3),
+        ("RIGHTPADDING", (0, 0), (-1, -1), 3),
+        ("TOPPADDING", (0, 0), (-1, -1), 2),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 2),
+    ]
+    first.setStyle(TableStyle([*inner, ("BACKGROUND", (0, 0), (0, 0), tone)]))
+    kit_table.setStyle(TableStyle([*inner, ("LINEAFTER", (0, 0), (-2, -1), 0.4, colors.grey)]))
+    drug_table.setStyle(TableStyle([*inner, ("LINEAFTER", (0, 0), (-2, -1), 0.4, colors.grey)]))
+    table = Table([[first], [kit_table], [drug_table]], colWidths=[width])
     table.setStyle(
         TableStyle(
             [
-                ("VALIGN", (0, 0), (-1, -1), "TOP"),
                 ("FONTNAME", (0, 0), (-1, -1), FONT),
+                ("BOX", (0, 0), (-1, -1), 1.2, tone),
+                ("LINEBELOW", (0, 0), (-1, 1), 0.6, tone),
                 ("LEFTPADDING", (0, 0), (-1, -1), 0),
-                ("RIGHTPADDING", (0, 0), (-1, -1), 4),
+                ("RIGHTPADDING", (0, 0), (-1, -1), 0),
+                ("TOPPADDING", (0, 0), (-1, -1), 0),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 0),
             ]
         )
     )
     return table
 
 
-def _two_columns(rows: list[list[object]], width: float) -> Table:
-    """Rows of [marker, text] split over two columns (one when there is a single row)."""
-    half = width / 2 - 3
-    widths = [half * 0.06, half * 0.94]
-    cut = (len(rows) + 1) // 2
-    if len(rows) < 2:
-        return _grid(rows, [width * 0.03, width * 0.97], header=False)
-    return _pair(
-        _grid(rows[:cut], widths, header=False), _grid(rows[cut:], widths, header=False), width
-    )
+def _per_kg_short(d: Dose) -> str:
+    """'2-2.5 mg/kg × 72 kg' for the key block; which weight that is, is said below it."""
+    per = _range(d.mg_per_kg_low, d.mg_per_kg_high)
+    return f"{per} mg/kg × {d.scalar_weight_kg:g} kg"
 
 
-def _checklist_block(
-    checklist: RenderedChecklist, width: float, st: dict[str, ParagraphStyle]
-) -> KeepTogether:
-    """A filled-in checklist in two columns of tick boxes."""
-    rows = []
-    for section in checklist.sections:
-        for item in section.items:
-            box = "☐" if item.checkbox else "•"
-            rows.append([box, _p(item.text, st["small"])])
-    return KeepTogether([_p(checklist.title, st["h2"]), _two_columns(rows, width)])
+def _range(low: float, high: float) -> str:
+    return f"{low:g}" if low == high else f"{low:g}-{high:g}"
 
 
-def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
-    r, e, dec, oxy = plan.risk, plan.equipment, plan.decision, plan.oxygenation
-    t = e.tracheal_tube_mm
-    small = st["small"]
-    story: list[object] = []
-    add = story.append
+def _header(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
     label = plan.assessment.label
-    add(_p("Airway plan" + (f": {label}" if label else ""), st["h1"]))
     who = plan.assessment.identity
-    add(
-        _grid(
-            [
-                [
-                    _p(f"Name: {who.name or '_' * 24}", st["body"]),
-                    _p(f"Record number: {who.record_number or '_' * 12}", st["body"]),
-                    _p(f"Born: {who.date_of_birth or '_' * 10}", st["body"]),
-                    _p("Signed: ____________", st["body"]),
-                ]
-            ],
-            [width * 0.34, width * 0.26, width * 0.18, width * 0.22],
-            header=False,
-        )
-    )
-    add(_p(" ".join(plan.cautions[:2]), st["caution"]))
-    add(Spacer(0, 3))
-    level = Table(
+    ids = _grid(
         [
             [
-                _p(level_heading(r.level), st["level"]),
-                _p(f"index {r.index:.2f} (ranks risk; not a probability)", st["body"]),
+                _p(f"Name: {who.name or '_' * 22}", st["body"]),
+                _p(f"Record number: {who.record_number or '_' * 12}", st["body"]),
+                _p(f"Born: {who.date_of_birth or '_' * 10}", st["body"]),
+                _p("Signed: ___________", st["body"]),
             ]
         ],
-        colWidths=[width * 0.66, width * 0.34],
+        [width * 0.36, width * 0.26, width * 0.18, width * 0.20],
+        header=False,
     )
-    level.setStyle(
-        TableStyle(
-            [
-                ("FONTNAME", (0, 0), (-1, -1), FONT),
-                ("BACKGROUND", (0, 0), (0, 0), WARN if r.level >= 3 else ACCENT),
-                ("BOX", (0, 0), (-1, -1), 0.8, WARN if r.level >= 3 else ACCENT),
-                ("VALIGN", (0, 0), (-1, -1), "MIDDLE"),
-            ]
-        )
-    )
-    add(level)
-    if r.overrides:
-        add(_p("Forced to airway level 4 by: " + ", ".join(r.overrides), st["caution"]))
+    return [
+        _p("Obstetric airway plan" + (f": {label}" if label else ""), st["h1"]),
+        ids,
+        Spacer(0, 2),
+        _p(" ".join(plan.cautions[:2]), st["caution"]),
+        Spacer(0, 3),
+    ]
+
+
+def _basis(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
+    r = plan.risk
+    small = st["small"]
     present = [f for f in r.factors if f.present and f.role != "preparation"]
     largest = max((f.contribution for f in present), default=0.0)
-    bar_w = width * 0.16
-    rows: list[list[object]] = [["Factor found", "Weight", "Adds to index", "", "Source"]]
+    bar_w = width * 0.14
+    rows: list[list[object]] = [["Factor found", "Weight", "Adds", "", "Source"]]
     for f in present:
         rows.append(
             [
                 _p(f.label + (f" ({f.detail})" if f.detail else ""), small),
                 _p(weight_text(f), small),
-                f"{f.contribution:.2f}",
+                "rule" if f.role == "override" else f"{f.contribution:.2f}",
                 _bar(f.contribution, largest, bar_w),
                 _p(source_label(f.source, f.basis, short=True), small),
             ]
         )
     if not present:
         rows.append([_p("none among those assessed", small), "", "", "", ""])
-    add(
-        KeepTogether(
-            [
-                _p(
-                    "Why this airway level: each factor, its weight, what it adds, its source",
-                    st["h2"],
-                ),
-                _grid(
-                    rows, [width * 0.33, width * 0.12, width * 0.09, bar_w + 4, width * 0.30 - 4]
-                ),
-            ]
-        )
-    )
-    notes = []
+    title = f"Why airway level {r.level}: index {r.index:.2f}, each factor and its source"
+    widths = [width * 0.41, width * 0.16, width * 0.07, bar_w + 4, width * 0.22 - 4]
+    out: list[object] = [_p(title, st["h2"]), _grid(rows, widths)]
+    notes = []  # the index's independence note closes the page with the other cautions
+    if r.overrides:
+        notes.append("<b>Forced to airway level 4 by:</b> " + escape(", ".join(r.overrides)) + ".")
+    # An assumed ratio's source column already reads "project rule".
     if plan.not_assessed:
         notes.append("<b>Not assessed:</b> " + escape(", ".join(plan.not_assessed)) + ".")
-    notes += [
-        f"<b>Prepare ({escape(f.label.lower())}):</b> {escape(f.prepares)} "
-        f"({escape(source_label(f.source, f.basis, short=True))})."
-        for f in r.factors
-        if f.present and f.prepares and f.role == "preparation"
-    ]
-    notes += [
-        f"<b>Prepare ({escape(f.label.lower())}):</b> {escape(f.prepares)}."
-        for f in present
-        if f.prepares
-    ]
+    notes += [f"<b>Prepare:</b> {escape(p)}." for p in plan.preparation]
     b = plan.body
     notes.append(
         "<b>Body size:</b> "
@@ -332,137 +416,288 @@ def _story(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[obje
             f"adjusted {b.adjusted_weight_kg:.1f} kg (Devine; Janmahasatian; IBW + 0.4 excess)."
         )
     )
-    for n in notes:
-        add(Paragraph(n, small))
-    half = width / 2 - 3
-    eq_rows: list[list[object]] = [["", "Open or check", "Detail"]]
-    for item in e.items:
-        where = "OPEN" if item.open_now else "in room"
-        eq_rows.append(["☐", _p(f"{item.name} ({where})", small), _p(item.detail, small)])
-    equipment = [
-        _p(
-            f"Equipment: tubes {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm, "
-            f"supraglottic {e.supraglottic_size:g}, front of neck "
-            f"{e.front_of_neck_tube_mm:.1f} mm",
-            st["h2"],
-        ),
-        _p(
-            f"Tubes: {t.reason}. Supraglottic size by weight {plan.body.weight_kg:g} kg from "
-            "makers' bands (not evidence-based).",
-            small,
-        ),
-        _grid(eq_rows, [half * 0.07, half * 0.3, half * 0.63]),
+    out += [Paragraph(n, small) for n in notes]
+    return out
+
+
+# How the decision's factors are listed, in this order.
+DIRECTIONS = (
+    ("proceed", "Points to proceeding:"),
+    ("wake", "Points to waking:"),
+    ("neither", "Points neither way:"),
+    ("unknown", "Not known yet:"),
+)
+
+
+GAP = 9.0  # points between the two columns
+MARGINS_MM = {"left": 10.0, "right": 10.0, "top": 8.0, "bottom": 12.0}
+
+
+def _column_width(width: float, columns: int = 2) -> float:
+    return (width - GAP * (columns - 1)) / columns
+
+
+def _equipment(plan: Plan, col: float, st: dict[str, ParagraphStyle], dense: bool) -> list[object]:
+    e = plan.equipment
+    small = st["small"]
+    if dense:  # names only, run on: the sizes are in the key block, the rest on the trolley sheet
+        items = [
+            f"☐\u00a0{escape(i.name)} ({'open' if i.open_now else 'in the room'})" for i in e.items
+        ]
+        listing: object = Paragraph("   ".join(items), small)
+    else:
+        rows: list[list[object]] = []
+        for item in e.items:
+            where = "open" if item.open_now else "in the room"
+            text = f"<b>{escape(item.name)}</b> ({where}): {escape(item.detail)}"
+            rows.append(["☐", Paragraph(text, small)])
+        listing = _grid(rows, [col * 0.07, col * 0.93], header=False)
+    return [
+        _p("Equipment: tick when ready", st["h2"]),
+        listing,
+        _p(f"Tubes: {e.tracheal_tube_mm.reason}. {e.supraglottic_basis}.", small),
     ]
-    dose_rows: list[list[object]] = [["Drug", "Dose", "Dosed on"]]
-    for d in plan.doses:
-        dose_rows.append([_p(d.label, small), _p(dose_text(d), small), _p(per_kg_text(d), small)])
-    dose_notes = " ".join(f"{d.label}: {d.note}" for d in plan.doses if d.note)
-    doses = [
-        _p("Doses (calculation aid: check and titrate)", st["h2"]),
-        _grid(dose_rows, [half * 0.28, half * 0.3, half * 0.42]),
-    ]
-    add(_pair(equipment, doses, width))
-    add(_p("Dose notes: " + dose_notes, small))
+
+
+def _oxygen(plan: Plan, col: float, st: dict[str, ParagraphStyle], curve: bool) -> list[object]:
+    oxy = plan.oxygenation
     h = oxy.horizon_minutes
-    ox_rows: list[list[object]] = [["Apnoea scenario", "SpO2 90%", "80%"]]
+    rows: list[list[object]] = [["Minutes to SpO2 of", "90%", "80%"]]
     for sc in oxy.scenarios:
-        ox_rows.append(
+        rows.append(
             [
-                _p(sc.label, small),
+                _p(sc.label, st["small"]),
                 minutes_text(sc.minutes_to_spo2_90, h),
                 minutes_text(sc.minutes_to_spo2_80, h),
             ]
         )
-    oxygen = [
-        _p("Oxygenation (model estimate, not a guarantee)", st["h2"]),
-        _grid(ox_rows, [half * 0.62, half * 0.2, half * 0.18]),
-        _curve(plan, half),
+    out: list[object] = [
+        _p("Oxygenation: a model estimate", st["h2"]),
+        _grid(rows, [col * 0.64, col * 0.18, col * 0.18]),
     ]
-    dec_rows: list[list[object]] = [["Decision factor", "Finding", "Points to"]]
-    for df in dec.factors:
-        pts = "" if df.points_to == "unknown" else f" {df.points:+d}"
-        dec_rows.append([_p(df.name, small), _p(df.finding, small), f"{df.points_to}{pts}"])
-    extra = by_category_text(dec.if_category).capitalize() + ". " if dec.if_category else ""
-    decision = [
+    return [*out, _curve(plan, col)] if curve else out
+
+
+# How the decision's factors are listed, in this order.
+DIRECTIONS = (
+    ("proceed", "Points to proceeding:"),
+    ("wake", "Points to waking:"),
+    ("neither", "Points neither way:"),
+    ("unknown", "Not known yet:"),
+)
+
+
+def _decision(plan: Plan, st: dict[str, ParagraphStyle], dense: bool) -> list[object]:
+    dec = plan.decision
+    small = st["small"]
+    out: list[object] = [
         _p(DECISION_TITLE, st["h2"]),
-        _p(f"Pre-made decision: {dec.headline}", st["caution"]),
-        _grid(dec_rows, [half * 0.4, half * 0.4, half * 0.2]),
-        _p("Final decision, ticked before induction: ☐ wake  ☐ proceed", st["body"]),
-        _p("Signed: ____________________", st["body"]),
+        _p(
+            f"Pre-made decision: {SHORT[dec.recommendation].upper()} (points total {dec.total:+d})",
+            st["caution"],
+        ),
     ]
-    add(_pair(oxygen, decision, width))
-    add(_p(extra + " ".join(dec.conditions), small))
-    full = r.level == 4  # the highest level gets every action, on two pages at most
+    for direction, heading in DIRECTIONS:
+        found = [
+            # "category 2: she or the baby..." reads "category 2" here: the key says the rest.
+            f"{df.name.lower()}: {df.finding.split(': ')[0]}"
+            + ("" if direction == "unknown" else f" {df.points:+d}")
+            for df in dec.factors
+            if df.points_to == direction
+        ]
+        if found:
+            out.append(Paragraph(f"<b>{heading}</b> " + escape("; ".join(found)) + ".", small))
+    if dec.if_category:
+        out.append(_p(by_category_text(dec.if_category).capitalize() + ".", small))
+    # Dense: the condition that governs proceeding; the sequence covers the others.
+    out += [_p(c, small) for c in (dec.conditions[:1] if dense else dec.conditions)]
+    return out
+
+
+def _doses(plan: Plan, st: dict[str, ParagraphStyle]) -> list[object]:
+    small = st["small"]
+    scalars: dict[str, list[str]] = {}
+    for d in plan.doses:
+        if not d.rule:
+            scalars.setdefault(SCALAR_LABEL[d.scalar], []).append(_short_drug(d).lower())
+    dosed_on = "; ".join(f"{', '.join(v)} on {k}" for k, v in scalars.items())
+    held = [d for d in plan.doses if d.rule]
+    if held:  # one sentence for every held drug, not one each
+        names = ", ".join(_short_drug(d).lower() for d in held)
+        dosed_on += f"; {names}: {held[0].rule[0].lower()}{held[0].rule[1:].rstrip('.')}"
+    out: list[object] = [
+        _p("Doses: a calculation aid, check and titrate", st["h2"]),
+        _p(f"Dosed on: {dosed_on}.", small),
+    ]
+    by_scalar: dict[tuple[str, float], list[str]] = {}
+    for d in plan.doses:
+        for a in d.alternatives:
+            by_scalar.setdefault((a.scalar, a.weight_kg), []).append(
+                f"{_short_drug(d).lower()} {_range(a.dose_mg_low, a.dose_mg_high)} mg"
+            )
+    if by_scalar:
+        alternatives = "; ".join(
+            f"{SCALAR_LABEL[scalar]} {kg:g} kg: {', '.join(doses)}"
+            for (scalar, kg), doses in by_scalar.items()
+        )
+        out.append(Paragraph(f"<b>On other scalars:</b> {escape(alternatives)}.", small))
+    out.append(_p(" ".join(f"{_short_drug(d)}: {d.note}" for d in plan.doses if d.note), small))
+    return out
+
+
+def _steps(plan: Plan, width: float, st: dict[str, ParagraphStyle], full: bool) -> list[object]:
+    small = st["small"]
     lists = {c.sheet: c for c in plan.checklists}
     # The unit's brief and after-event checklists stand in for those steps when present,
     # so the printout says what the Markdown plan says.
     skip = {"before induction"} if "brief" in lists else set()
     if "after" in lists:
         skip.add("after the event")
-    if "brief" in lists:
-        add(_checklist_block(lists["brief"], width, st))
-    rows_all = []
-    for number, step in enumerate(plan.steps, 1):
-        if step.phase in skip:
-            continue
-        text = " ".join(step.actions) if full else step.summary
-        rows_all.append(
-            [str(number), _p(step.title, small), _p(text, small)]
-            if full
-            else [str(number), _p(text, small)]
-        )
-    add(_p("If it goes wrong: the sequence, with her values", st["h2"]))
+    title = _p("If it goes wrong: the sequence, with her values", st["h2"])
+    numbered = [(n, s) for n, s in enumerate(plan.steps, 1) if s.phase not in skip]
     if full:
-        add(
-            _grid(
-                [["", "Step", "What to do"], *rows_all], [width * 0.04, width * 0.2, width * 0.76]
-            )
-        )
-    else:
-        add(_two_columns(rows_all, width))
-    if "after" in lists:
-        add(_checklist_block(lists["after"], width, st))
-    tail = [f"<b>Check:</b> {escape(w)}" for w in plan.warnings]
+        rows: list[list[object]] = [["", "Step", "What to do"]]
+        rows += [[str(n), _p(s.title, small), _p(" ".join(s.actions), small)] for n, s in numbered]
+        return [title, _grid(rows, [width * 0.04, width * 0.2, width * 0.76])]
+    rows = [[str(n), _p(s.summary, small)] for n, s in numbered]
+    return [title, _grid(rows, [width * 0.07, width * 0.93], header=False)]
+
+
+def _checklist(
+    checklist: RenderedChecklist, col: float, st: dict[str, ParagraphStyle], dense: bool = False
+) -> list[object]:
+    if dense:  # items run on in one paragraph, each behind its own box
+        items = [
+            ("☐" if item.checkbox else "•") + "\u00a0" + escape(item.text)
+            for section in checklist.sections
+            for item in section.items
+        ]
+        return [_p(checklist.title, st["h2"]), Paragraph("   ".join(items), st["small"])]
+    rows: list[list[object]] = [
+        ["☐" if item.checkbox else "•", _p(item.text, st["small"])]
+        for section in checklist.sections
+        for item in section.items
+    ]
+    return [_p(checklist.title, st["h2"]), _grid(rows, [col * 0.07, col * 0.93], header=False)]
+
+
+def _closing(plan: Plan, st: dict[str, ParagraphStyle]) -> list[object]:
+    small = st["small"]
+    out: list[object] = [Paragraph(f"<b>Check:</b> {escape(w)}", small) for w in plan.warnings]
     # The first two cautions head the page; the rest close it.
-    tail.append("<b>Cautions:</b> " + escape(" ".join(plan.cautions[2:])))
-    add(Spacer(0, 3))
-    for line in tail:
-        add(Paragraph(line, small))
-    return story
+    out.append(Paragraph("<b>Cautions:</b> " + escape(" ".join(plan.cautions[2:])), small))
+    return out
+
+
+class PdfLayoutError(AirwayError):
+    """The plan could not be laid out on paper (for example, a unit checklist item
+    too long for a column)."""
+
+
+def _height(flowables: list[object], width: float) -> float:
+    """How tall these flowables stand, one under the other, at this width."""
+    total = 0.0
+    for f in flowables:
+        _w, h = f.wrap(width, 10_000)  # type: ignore[attr-defined]
+        total += h + f.getSpaceBefore() + f.getSpaceAfter()  # type: ignore[attr-defined]
+    return total
+
+
+def _template(name: str, size: tuple[float, float], top: float, columns: int = 2) -> PageTemplate:
+    """A page: a full-width frame ``top`` points tall, then columns under it."""
+    page_w, page_h = size
+    left, right = MARGINS_MM["left"] * mm, MARGINS_MM["right"] * mm
+    upper, lower = MARGINS_MM["top"] * mm, MARGINS_MM["bottom"] * mm
+    width = page_w - left - right
+    col = _column_width(width, columns)
+    pad = {"leftPadding": 0, "rightPadding": 0, "topPadding": 0, "bottomPadding": 0}
+    frames = []
+    if top > 0:
+        frames.append(Frame(left, page_h - upper - top, width, top, id=f"{name}-top", **pad))
+    column_h = page_h - upper - lower - top - (4 if top > 0 else 0)
+    frames += [
+        Frame(left + n * (col + GAP), lower, col, column_h, id=f"{name}-{n}", **pad)
+        for n in range(columns)
+    ]
+    return PageTemplate(id=name, frames=frames)
+
+
+def _layout(
+    plan: Plan, size: tuple[float, float], st: dict[str, ParagraphStyle], dense: bool
+) -> tuple[list[PageTemplate], list[object]]:
+    """Page templates and the story that flows through them."""
+    width = size[0] - (MARGINS_MM["left"] + MARGINS_MM["right"]) * mm
+    usable = size[1] - (MARGINS_MM["top"] + MARGINS_MM["bottom"]) * mm
+    # Dense (levels 1-2 that overflow one page): three narrower columns waste less
+    # of each line on short checklist items.
+    columns = 3 if dense else 2
+    col = _column_width(width, columns)
+    lists = {c.sheet: c for c in plan.checklists}
+    brief = _checklist(lists["brief"], col, st, dense) if "brief" in lists else []
+    after = _checklist(lists["after"], col, st, dense) if "after" in lists else []
+    top = [*_header(plan, width, st), _key_block(plan, width, st), *_basis(plan, width, st)]
+    reference = [
+        *_equipment(plan, col, st, dense),
+        *_oxygen(plan, col, st, curve=not dense),
+        *_decision(plan, st, dense),
+        *_doses(plan, st),
+    ]
+    top_h = min(usable, _height(top, width) + 2)
+    templates = [
+        _template("first", size, top_h, columns),
+        _template("columns", size, 0, columns),
+    ]
+    story: list[object] = [NextPageTemplate("columns"), *top, FrameBreak()]
+    if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL:
+        steps = _steps(plan, col, st, full=False)
+        story += [*reference, *brief, *steps, *after, *_closing(plan, st)]
+        return templates, story
+    # Higher levels: page 2 opens with every action of the sequence, full width.
+    steps = _steps(plan, width, st, full=True)
+    steps_h = min(usable, _height(steps, width) + 2)
+    templates.append(_template("actions", size, steps_h))
+    story += [*reference, NextPageTemplate("actions"), PageBreak(), *steps, FrameBreak()]
+    story += [NextPageTemplate("columns"), *brief, *after, *_closing(plan, st)]
+    return templates, story
 
 
 def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
-    """The plan as PDF bytes: one page for a routine plan, two at most."""
+    """The plan as PDF bytes: one page up to airway level 2, two at most."""
     _register_fonts()
     st = _styles()
-    buf = io.BytesIO()
-    doc = SimpleDocTemplate(
-        buf,
-        pagesize=PAPER[paper],
-        leftMargin=12 * mm,
-        rightMargin=12 * mm,
-        topMargin=11 * mm,
-        bottomMargin=14 * mm,
-        title="Obstetric airway plan",
-        author="airway",
-        creator=f"airway {plan.generated_by.version}",
-        invariant=1,
-        initialFontName=FONT,
-        lang="en-GB",
-    )
+    size = PAPER[paper]
     g = plan.generated_by
     footer = (
         f"{g.tool} {g.version}, rules {g.rules_version}, input "
         f"{plan.input_sha256[:16]}. Decision aid: not a substitute for clinical judgement."
     )
+    pages: list[int] = []
 
     def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
-        return _NumberedCanvas(*args, footer=footer, **kwargs)
+        return _NumberedCanvas(*args, footer=footer, pages=pages, **kwargs)
 
-    story = _story(plan, doc.width, st)
-    if plan.risk.level < 4:
-        # A routine plan is one page: shrink to fit rather than spill (US Letter is shorter).
-        flat = [x for f in story for x in (f._content if isinstance(f, KeepTogether) else [f])]
-        story = [KeepInFrame(doc.width, doc.height, flat, mode="shrink")]
-    doc.build(story, canvasmaker=canvas)
-    return buf.getvalue()
+    def build(dense: bool) -> bytes:
+        buf = io.BytesIO()
+        templates, story = _layout(plan, size, st, dense)
+        doc = BaseDocTemplate(
+            buf,
+            pagesize=size,
+            pageTemplates=templates,
+            title="Obstetric airway plan",
+            author="airway",
+            creator=f"airway {plan.generated_by.version}",
+            invariant=1,
+            initialFontName=FONT,
+            lang="en-GB",
+        )
+        try:
+            doc.build(story, canvasmaker=canvas)
+        except LayoutError as exc:
+            raise PdfLayoutError(f"the plan could not be laid out on paper: {exc}") from None
+        return buf.getvalue()
+
+    pdf = build(dense=False)
+    if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL and pages[-1] > 1:
+        # Levels 1 and 2 belong on one page: drop the curve (its numbers are in the table).
+        pdf = build(dense=True)
+    return pdf

@@ -200,8 +200,9 @@ def _doses(plan: Plan) -> list[str]:
                 f"gives {alt.dose_mg_low:g}-{alt.dose_mg_high:g} mg",
                 "      ",
             )
-        if d.note:
-            lines += _wrap(d.note, "      ")
+        for text in (d.rule, d.note):
+            if text:
+                lines += _wrap(text, "      ")
         lines += _wrap("Basis: " + d.basis, "      ")
     return lines
 

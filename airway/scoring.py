@@ -49,8 +49,8 @@ def thresholds_text(thresholds: tuple[float, float, float]) -> str:
 
 
 INDEPENDENCE_NOTE = (
-    "The index adds log ratios as if the factors were independent; they are not, "
-    "so it ranks risk and is not a probability."
+    "The index treats the factors as independent; they are not, so it ranks risk "
+    "and is not a probability."
 )
 
 

@@ -26,7 +26,7 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 
-TERMINAL_FLOOR = '''
+TERMINAL_FLOOR = """
 import typer
 from pydantic import BaseModel, Field
 
@@ -48,9 +48,9 @@ def other() -> None:
 
 
 app()
-'''
+"""
 
-PDF_FLOOR = '''
+PDF_FLOOR = """
 import io
 import sys
 
@@ -88,7 +88,7 @@ def other() -> None:
 
 
 app()
-'''
+"""
 
 TARGETS = {"quick (terminal)": ("terminal floor", 1.3), "quick --pdf": ("PDF floor", 1.15)}
 
@@ -127,7 +127,7 @@ def main() -> None:
         "sheet doses": [exe, "sheet", "doses", "-o", str(out / "d.pdf"), "--force"],
     }
     samples: dict[str, list[float]] = {name: [] for name in commands}
-    for name, args in commands.items():  # warm the file cache once
+    for args in commands.values():  # warm the file cache once
         subprocess.run(args, check=True, capture_output=True)
     for _ in range(repeat):
         for name, args in commands.items():
@@ -140,7 +140,9 @@ def main() -> None:
     for name, m in median.items():
         floor, target = TARGETS.get(name, ("terminal floor", None))
         ratio = m / median[floor]
-        verdict = "" if target is None else f"<= {target:g}  {'ok' if ratio <= target else 'MISSED'}"
+        verdict = (
+            "" if target is None else f"<= {target:g}  {'ok' if ratio <= target else 'MISSED'}"
+        )
         print(f"{name:<22} {m * 1000:7.0f} ms  x{ratio:4.2f} of {floor:<18} {verdict}")
 
 

@@ -61,7 +61,7 @@ def test_propofol_does_not_fall_across_bmi_30_at_150_cm() -> None:
     assert at_65.dose_mg_high == 162.5 and at_65.scalar == "total"
     assert at_70.dose_mg_high >= at_65.dose_mg_high
     assert _alt(at_70, "lean").dose_mg_high == pytest.approx(99.1, abs=0.2)
-    assert "Held at the dose for BMI 30" in at_70.note
+    assert at_70.held_from_scalar == "lean" and "Held at the dose for BMI 30" in at_70.rule
 
 
 def test_non_obese_doses_on_total_weight() -> None:

@@ -162,3 +162,11 @@ def test_sheets_reproducible_and_fonts_embedded(kind: str, tmp_path: Path) -> No
         for font in page["/Resources"]["/Font"].values():
             descriptor = font.get_object()["/FontDescriptor"].get_object()
             assert "/FontFile2" in descriptor
+
+
+@pytest.mark.parametrize("kind", SHEETS)
+@pytest.mark.parametrize("paper", ["A4", "A3"])
+def test_sheets_have_no_text_under_8_points(kind: str, paper: str) -> None:
+    from .test_render_pdf import _font_sizes
+
+    assert min(_font_sizes(render_sheet_pdf(_sheet(kind), paper))) >= 8.0
