@@ -430,6 +430,7 @@ DIRECTIONS = (
 
 
 GAP = 9.0  # points between the two columns
+FIT_SLACK = 0.94  # share of the columns' room that measured content may fill
 MARGINS_MM = {"left": 10.0, "right": 10.0, "top": 8.0, "bottom": 12.0}
 
 
@@ -623,9 +624,14 @@ def _template(name: str, size: tuple[float, float], top: float, columns: int = 2
 
 
 def _layout(
-    plan: Plan, size: tuple[float, float], st: dict[str, ParagraphStyle], dense: bool
-) -> tuple[list[PageTemplate], list[object]]:
-    """Page templates and the story that flows through them."""
+    plan: Plan,
+    size: tuple[float, float],
+    st: dict[str, ParagraphStyle],
+    dense: bool,
+    head: tuple[list[object], float],
+) -> tuple[list[PageTemplate], list[object], bool]:
+    """Page templates, the story that flows through them, and whether a one-page plan
+    looks likely to fit (its column content measured against the columns' room)."""
     width = size[0] - (MARGINS_MM["left"] + MARGINS_MM["right"]) * mm
     usable = size[1] - (MARGINS_MM["top"] + MARGINS_MM["bottom"]) * mm
     # Dense (levels 1-2 that overflow one page): three narrower columns waste less
@@ -635,14 +641,13 @@ def _layout(
     lists = {c.sheet: c for c in plan.checklists}
     brief = _checklist(lists["brief"], col, st, dense) if "brief" in lists else []
     after = _checklist(lists["after"], col, st, dense) if "after" in lists else []
-    top = [*_header(plan, width, st), _key_block(plan, width, st), *_basis(plan, width, st)]
+    top, top_h = head
     reference = [
         *_equipment(plan, col, st, dense),
         *_oxygen(plan, col, st, curve=not dense),
         *_decision(plan, st, dense),
         *_doses(plan, st),
     ]
-    top_h = min(usable, _height(top, width) + 2)
     templates = [
         _template("first", size, top_h, columns),
         _template("columns", size, 0, columns),
@@ -650,15 +655,18 @@ def _layout(
     story: list[object] = [NextPageTemplate("columns"), *top, FrameBreak()]
     if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL:
         steps = _steps(plan, col, st, full=False)
-        story += [*reference, *brief, *steps, *after, *_closing(plan, st)]
-        return templates, story
+        flowing = [*reference, *brief, *steps, *after, *_closing(plan, st)]
+        room = columns * (usable - top_h - 4)
+        # A column break wastes part of a line or a table row: keep some slack.
+        fits = _height(flowing, col) <= FIT_SLACK * room
+        return templates, [*story, *flowing], fits
     # Higher levels: page 2 opens with every action of the sequence, full width.
     steps = _steps(plan, width, st, full=True)
     steps_h = min(usable, _height(steps, width) + 2)
     templates.append(_template("actions", size, steps_h))
     story += [*reference, NextPageTemplate("actions"), PageBreak(), *steps, FrameBreak()]
     story += [NextPageTemplate("columns"), *brief, *after, *_closing(plan, st)]
-    return templates, story
+    return templates, story, True
 
 
 def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
@@ -676,9 +684,18 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
     def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
         return _NumberedCanvas(*args, footer=footer, pages=pages, **kwargs)
 
+    # The head of page 1 is the same in either layout: make and measure it once.
+    width = size[0] - (MARGINS_MM["left"] + MARGINS_MM["right"]) * mm
+    usable = size[1] - (MARGINS_MM["top"] + MARGINS_MM["bottom"]) * mm
+    top = [*_header(plan, width, st), _key_block(plan, width, st), *_basis(plan, width, st)]
+    head = (top, min(usable, _height(top, width) + 2))
+
     def build(dense: bool) -> bytes:
         buf = io.BytesIO()
-        templates, story = _layout(plan, size, st, dense)
+        templates, story, fits = _layout(plan, size, st, dense, head)
+        if not (fits or dense):
+            # Measured too long for one page: go straight to the denser layout.
+            return build(dense=True)
         doc = BaseDocTemplate(
             buf,
             pagesize=size,

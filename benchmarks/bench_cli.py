@@ -126,6 +126,9 @@ def main() -> None:
         "plan FILE --pdf": [exe, "plan", example, "--pdf", str(out / "p.pdf"), "--force"],
         "sheet doses": [exe, "sheet", "doses", "-o", str(out / "d.pdf"), "--force"],
     }
+    # An installed package has its bytecode compiled at install time; an editable checkout
+    # on a machine with PYTHONDONTWRITEBYTECODE would recompile on every run.
+    subprocess.run([py, "-m", "compileall", "-q", str(ROOT / "airway")], check=True)
     samples: dict[str, list[float]] = {name: [] for name in commands}
     for args in commands.values():  # warm the file cache once
         subprocess.run(args, check=True, capture_output=True)
