@@ -23,6 +23,14 @@ SCALAR_LABEL = {
     "adjusted": "adjusted body weight",
     "boundary": "BMI-30 weight for her height",
 }
+# One word or two, for a one-screen column.
+SCALAR_SHORT = {
+    "total": "total",
+    "lean": "lean",
+    "ideal": "ideal",
+    "adjusted": "adjusted",
+    "boundary": "BMI-30",
+}
 
 # Obesity, for the choice of scalar: WHO obese class I or above (BMI >= 30),
 # applied to the current weight (project rule: the airway is managed at term).

@@ -12,7 +12,7 @@ import textwrap
 
 from .body import BODY_FORMULA_WARNING
 from .decision import DECISION_TITLE, by_category_text
-from .doses import SCALAR_LABEL, Dose, dose_text
+from .doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text
 from .oxygenation import Oxygenation
 from .plan_model import Plan
 from .scoring import FactorResult, level_heading, thresholds_text
@@ -293,7 +293,7 @@ def _compact(plan: Plan) -> list[str]:
     lines.append("DOSES (calculation aid: check and titrate)")
     for dose in plan.doses:
         name = dose.label.split(" (")[0]
-        scale = f"{SCALAR_LABEL[dose.scalar].split()[0]} {dose.scalar_weight_kg:g} kg"
+        scale = f"{SCALAR_SHORT[dose.scalar]} {round(dose.scalar_weight_kg, 1):g} kg"
         lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
     lines += ["", DECISION_TITLE.upper()]
     lines += _wrap(f"Pre-made decision: {d.headline}")
