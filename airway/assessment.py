@@ -10,6 +10,7 @@ them a value is refused; inside them but improbable (see
 from __future__ import annotations
 
 import unicodedata
+from datetime import date
 from typing import Annotated, Literal
 
 from pydantic import AfterValidator, BaseModel, ConfigDict, Field, field_validator
@@ -210,6 +211,10 @@ class Assessment(_Model):
     history: History = History()
     preeclampsia: Preeclampsia = Preeclampsia()
     context: Context = Context()
+    assessed_on: date | None = Field(
+        default=None,
+        description="Date of the examination (YYYY-MM-DD); the ward board flags old plans",
+    )
     label: PrintableText | None = Field(
         default=None,
         max_length=120,

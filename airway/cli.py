@@ -9,7 +9,7 @@ from __future__ import annotations
 import gc
 import json
 import sys
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from enum import StrEnum
 from importlib import resources
@@ -474,6 +474,90 @@ def sheet(
         content = build_sheet(kind.value, lists, cat, people)
         write_atomic(output, render_sheet_pdf(content, paper.value, landscape), force=force)
         typer.echo(f"wrote {output}", err=True)
+
+
+def _progress_bar() -> Callable[[int, int], None] | None:
+    """A one-line bar on stderr, only when stderr is a terminal."""
+    if not sys.stderr.isatty():
+        return None
+
+    def show(done: int, total: int) -> None:
+        filled = 30 * done // max(total, 1)
+        end = "\n" if done >= total else ""
+        sys.stderr.write(f"\r[{'#' * filled}{'.' * (30 - filled)}] {done}/{total}{end}")
+        sys.stderr.flush()
+
+    return show
+
+
+@command(cls=GroupedCommand)
+def batch(
+    clinic_list: Annotated[
+        Path, typer.Argument(metavar="LIST.csv", help="The clinic list: one woman a row.")
+    ],
+    out: Annotated[
+        Path,
+        typer.Option("--out", metavar="DIR", help="Folder for the outputs.", rich_help_panel=OUT),
+    ],
+    pdf: Annotated[
+        bool, typer.Option("--pdf", help="Also a PDF per woman.", rich_help_panel=OUT)
+    ] = False,
+    paper: PaperOpt = Paper.A4,
+    force: Annotated[
+        bool, typer.Option("--force", help="Replace earlier outputs.", rich_help_panel=OUT)
+    ] = False,
+    resume: Annotated[
+        bool,
+        typer.Option("--resume", help="Keep rows whose outputs are complete.", rich_help_panel=OUT),
+    ] = False,
+    jobs: Annotated[
+        int | None,
+        typer.Option(
+            "--jobs",
+            metavar="N",
+            min=1,
+            help="PDF processes (default: all cores).",
+            rich_help_panel=OUT,
+        ),
+    ] = None,
+    catalogue: CatalogueOpt = None,
+    checklists: ChecklistsOpt = None,
+    config: ConfigOpt = None,
+) -> None:
+    """Plan a clinic list: a plan per row and a summary.
+
+    Columns are the assessment's field paths (see the README); an empty cell is not
+    assessed. Exit 0 when every row was planned, 2 when any row had bad input.
+
+    Example: airway batch examples/clinic-list.csv --out plans --pdf
+    """
+    from .batch import run_batch
+
+    with _errors():
+        cat, lists, _paths = _unit(config, catalogue, checklists)
+        result = run_batch(
+            clinic_list,
+            out,
+            cat,
+            lists,
+            pdf=pdf,
+            paper=paper.value,
+            force=force,
+            resume=resume,
+            jobs=jobs,
+            progress=_progress_bar(),
+        )
+    for row in result.bad_rows:
+        for problem in row.problems:
+            typer.echo(f"airway: {clinic_list}: {problem}", err=True)
+    planned = len(result.rows) - len(result.bad_rows)
+    typer.echo(
+        f"planned {planned} of {len(result.rows)} rows into {out} "
+        f"({result.written} files written, {result.kept} kept)",
+        err=True,
+    )
+    if result.bad_rows:
+        raise typer.Exit(2)
 
 
 @command(cls=GroupedCommand)

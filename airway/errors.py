@@ -77,6 +77,6 @@ class OutputExistsError(AirwayError):
 
     exit_code = 2
 
-    def __init__(self, path: str) -> None:
+    def __init__(self, path: str, message: str = "") -> None:
         self.path = path
-        super().__init__(f"{path} already exists; use --force to replace it")
+        super().__init__(message or f"{path} already exists; use --force to replace it")

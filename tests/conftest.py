@@ -9,7 +9,7 @@ from airway.assessment import Assessment
 from airway.loading import assessment_from_mapping
 
 ROOT = Path(__file__).resolve().parent.parent
-EXAMPLES = sorted((ROOT / "examples").glob("*.*"))
+EXAMPLES = sorted(p for p in (ROOT / "examples").iterdir() if p.suffix in (".toml", ".json"))
 
 
 @pytest.fixture(autouse=True)

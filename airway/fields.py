@@ -1,0 +1,188 @@
+"""Every finding of the assessment as a flat field: dotted path, kind, unit, limits.
+
+Drawn from the assessment model itself, so the clinic list's columns, the guided
+entry's questions and the README's column reference cannot drift from what the
+plan reads. A cell or an answer is text; :func:`parse_text` turns it into the
+value the model validates (ranges and choices are checked by the model).
+"""
+
+from __future__ import annotations
+
+import types
+import typing
+from dataclasses import dataclass
+from datetime import date
+from typing import Any, Literal
+
+from pydantic import BaseModel
+
+from .assessment import Assessment
+
+Kind = Literal["number", "integer", "yes/no", "choice", "choices", "text", "date"]
+
+# The examination order: sections as the clinician meets them.
+SECTIONS = ("identity", "patient", "airway", "history", "preeclampsia", "context")
+LIST_SEPARATOR = ";"
+NOT_ASSESSED = ""  # an empty cell or a blank answer
+YES = ("yes", "y", "true", "1")
+NO = ("no", "n", "false", "0")
+
+
+@dataclass(frozen=True)
+class FieldSpec:
+    """One finding the assessment can hold."""
+
+    path: str  # "patient.weight_kg"
+    kind: Kind
+    required: bool
+    unit: str = ""
+    low: float | None = None
+    high: float | None = None
+    choices: tuple[str, ...] = ()
+    description: str = ""
+
+    @property
+    def section(self) -> str:
+        return self.path.split(".")[0] if "." in self.path else ""
+
+    @property
+    def name(self) -> str:
+        return self.path.split(".")[-1]
+
+    def allowed(self) -> str:
+        """What an answer may be, for a question or a column reference."""
+        if self.kind in ("number", "integer"):
+            unit = f" {self.unit}" if self.unit else ""
+            if self.low is not None and self.high is not None:
+                return f"{self.kind} {self.low:g}-{self.high:g}{unit}"
+            return f"{self.kind}{unit}"
+        if self.kind == "choice":
+            return " | ".join(self.choices)
+        if self.kind == "choices":
+            return f"any of {', '.join(self.choices)}, separated by '{LIST_SEPARATOR}'"
+        if self.kind == "date":
+            return "date YYYY-MM-DD"
+        if self.kind == "yes/no":
+            return "yes | no"
+        return "text"
+
+
+def _strip_none(annotation: Any) -> Any:
+    if isinstance(annotation, types.UnionType) or typing.get_origin(annotation) is typing.Union:
+        args = [a for a in typing.get_args(annotation) if a is not type(None)]
+        return args[0] if len(args) == 1 else annotation
+    return annotation
+
+
+def _literal_values(annotation: Any) -> tuple[str, ...]:
+    if typing.get_origin(annotation) is Literal:
+        return tuple(str(v) for v in typing.get_args(annotation))
+    return ()
+
+
+def _spec(path: str, info: Any) -> FieldSpec:
+    annotation = _strip_none(info.annotation)
+    lo = next((m.ge for m in info.metadata if getattr(m, "ge", None) is not None), None)
+    hi = next((m.le for m in info.metadata if getattr(m, "le", None) is not None), None)
+    extra = info.json_schema_extra if isinstance(info.json_schema_extra, dict) else {}
+    common = {
+        "path": path,
+        "required": info.is_required(),
+        "description": info.description or "",
+        "unit": str(extra.get("unit", "")),
+        "low": lo,
+        "high": hi,
+    }
+    if typing.get_origin(annotation) is tuple:
+        inner = typing.get_args(annotation)[0]
+        return FieldSpec(kind="choices", choices=_literal_values(inner), **common)
+    if choices := _literal_values(annotation):
+        return FieldSpec(kind="choice", choices=choices, **common)
+    kinds: dict[Any, Kind] = {bool: "yes/no", int: "integer", float: "number", date: "date"}
+    return FieldSpec(kind=kinds.get(annotation, "text"), **common)
+
+
+def field_specs() -> tuple[FieldSpec, ...]:
+    """Every field, in examination order, then the top-level fields."""
+    out: list[FieldSpec] = []
+    for section in SECTIONS:
+        model = Assessment.model_fields[section].annotation
+        assert isinstance(model, type) and issubclass(model, BaseModel)
+        out += [_spec(f"{section}.{name}", info) for name, info in model.model_fields.items()]
+    out += [
+        _spec(name, info) for name, info in Assessment.model_fields.items() if name not in SECTIONS
+    ]
+    return tuple(out)
+
+
+BY_PATH: dict[str, FieldSpec] = {f.path: f for f in field_specs()}
+
+
+def parse_text(spec: FieldSpec, text: str) -> object:
+    """The value a cell or answer stands for; ``None`` when blank (not assessed).
+
+    Raises:
+        ValueError: the text cannot be read as this field's kind (the message says
+            what is allowed). Ranges and choices are left to the model.
+    """
+    text = text.strip()
+    if text == NOT_ASSESSED:
+        return None
+    if spec.kind == "number":
+        try:
+            return float(text.replace(",", "."))
+        except ValueError:
+            raise ValueError(f"not a number; {spec.allowed()}") from None
+    if spec.kind == "integer":
+        try:
+            return int(text)
+        except ValueError:
+            raise ValueError(f"not a whole number; {spec.allowed()}") from None
+    if spec.kind == "yes/no":
+        low = text.lower()
+        if low in YES:
+            return True
+        if low in NO:
+            return False
+        raise ValueError("must be yes or no")
+    if spec.kind == "choices":
+        return [part.strip() for part in text.split(LIST_SEPARATOR) if part.strip()]
+    if spec.kind == "date":
+        try:
+            return date.fromisoformat(text).isoformat()
+        except ValueError:
+            raise ValueError("not a date; write it as YYYY-MM-DD") from None
+    return text
+
+
+def nest(values: dict[str, object]) -> dict[str, Any]:
+    """{"patient.weight_kg": 80} -> {"patient": {"weight_kg": 80}}; None values left out."""
+    out: dict[str, Any] = {}
+    for path, value in values.items():
+        if value is None:
+            continue
+        *sections, name = path.split(".")
+        target = out
+        for section in sections:
+            target = target.setdefault(section, {})
+        target[name] = value
+    out.setdefault("patient", {})
+    return out
+
+
+def column_reference() -> str:
+    """The Markdown table of clinic-list columns, for the README."""
+    lines = [
+        "| column | allowed | meaning |",
+        "|---|---|---|",
+        "| `id` | letters, digits, `.`, `_`, `-` (1-64; never a name) | names the row's outputs |",
+    ]
+    for f in field_specs():
+        meaning = f.description + (" (required)" if f.required else "")
+        lines.append(f"| `{f.path}` | {f.allowed()} | {meaning.strip()} |")
+    lines.append("| `comment` | text | ignored: the clinic's own note on the row |")
+    return "\n".join(lines) + "\n"
+
+
+if __name__ == "__main__":  # python -m airway.fields: the README's column reference
+    print(column_reference(), end="")

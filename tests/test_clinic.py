@@ -1,0 +1,171 @@
+"""Clinic lists: one woman a row, bad rows reported and skipped, outputs never lost."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from airway.cli import app
+from airway.clinic import FLAG_RULES, read_clinic_list, sort_summary, summary_row
+from airway.fields import BY_PATH, column_reference, field_specs, parse_text
+from airway.plan import build_plan
+
+from .conftest import ROOT
+
+HEADER = "id,comment,patient.weight_kg,patient.height_cm,airway.mallampati,preeclampsia.signs\n"
+
+
+def _list(tmp_path: Path, body: str, header: str = HEADER) -> Path:
+    f = tmp_path / "list.csv"
+    f.write_text(header + body, encoding="utf-8")
+    return f
+
+
+def test_every_model_field_is_a_column() -> None:
+    from airway.assessment import Assessment
+
+    expected = {
+        f"{section}.{name}"
+        for section, info in Assessment.model_fields.items()
+        if isinstance(info.annotation, type) and hasattr(info.annotation, "model_fields")
+        for name in info.annotation.model_fields  # type: ignore[union-attr]
+    }
+    paths = {f.path for f in field_specs()}
+    assert expected <= paths and "assessed_on" in paths and "label" in paths
+
+
+def test_readme_column_reference_is_generated_from_the_model() -> None:
+    readme = (ROOT / "README.md").read_text("utf-8")
+    block = readme.split("<!-- columns:start -->\n")[1].split("<!-- columns:end -->")[0]
+    assert block == column_reference()
+
+
+@pytest.mark.parametrize(
+    ("path", "text", "value"),
+    [
+        ("patient.weight_kg", "80,5", 80.5),
+        ("airway.mallampati", "3", 3),
+        ("airway.large_breasts", "Yes", True),
+        ("airway.large_breasts", "no", False),
+        ("airway.large_breasts", "", None),
+        ("preeclampsia.signs", "stridor; voice_change", ["stridor", "voice_change"]),
+        ("assessed_on", "2026-11-30", "2026-11-30"),
+    ],
+)
+def test_cells_read_as_their_field_kind(path: str, text: str, value: object) -> None:
+    assert parse_text(BY_PATH[path], text) == value
+
+
+def test_bad_rows_named_by_row_column_and_value_others_planned(tmp_path: Path) -> None:
+    rows = read_clinic_list(
+        HEADER
+        + "A1,,80,165,2,\n"
+        + "A2,bad,231 lb,165,2,\n"
+        + "A3,bad,80,165,5,\n"
+        + "A4,bad,80,165,1,hoarse\n"
+        + "A5,,95,160,3,stridor\n",
+        "list.csv",
+    )
+    bad = {r.id: [str(p) for p in r.problems] for r in rows if r.assessment is None}
+    assert set(bad) == {"A2", "A3", "A4"}
+    assert bad["A2"] == [
+        "row 3, column 'patient.weight_kg': not a number; number 30-300 kg (got '231 lb')"
+    ]
+    assert "row 4, column 'airway.mallampati': must be between 1 and 4 (got 5)" in bad["A3"]
+    assert "row 5" in bad["A4"][0] and "hoarse" in bad["A4"][0]
+
+
+def test_unsafe_or_repeated_ids_refused_and_never_echoed(tmp_path: Path) -> None:
+    rows = read_clinic_list(
+        HEADER
+        + "Ann Other,,80,165,1,\n../etc,,80,165,1,\nsummary,,80,165,1,\n"
+        + "B1,,80,165,1,\nb1,,80,165,1,\n",
+        "list.csv",
+    )
+    assert [r.assessment is None for r in rows] == [True, True, True, False, True]
+    text = " ".join(str(p) for r in rows for p in r.problems)
+    assert "Ann Other" not in text and "../etc" not in text
+    assert "unique" in text
+
+
+def test_header_problems_stop_the_list(runner, tmp_path: Path) -> None:
+    f = _list(tmp_path, "A1,,80,165,2,\n", header="id,patient.wieght_kg\n")
+    r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "out")])
+    assert r.exit_code == 2 and "unknown column" in r.stderr
+    assert not (tmp_path / "out" / "A1.json").exists()
+
+
+def test_row_json_is_the_same_plan_as_from_a_file(runner, tmp_path: Path) -> None:
+    f = _list(tmp_path, "A1,,98,165,3,voice_change\n")
+    out = tmp_path / "out"
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out)]).exit_code == 0
+    toml = tmp_path / "a.toml"
+    toml.write_text(
+        "[patient]\nweight_kg = 98\nheight_cm = 165\n[airway]\nmallampati = 3\n"
+        '[preeclampsia]\nsigns = ["voice_change"]\n'
+    )
+    single = runner.invoke(app, ["plan", str(toml), "-f", "json"]).stdout
+    assert json.loads((out / "A1.json").read_text()) == json.loads(single)
+
+
+def test_exit_2_with_bad_rows_and_summary_lists_them_first(runner, tmp_path: Path) -> None:
+    f = _list(tmp_path, "A1,,80,165,1,\nA2,bad,80,165,7,\nA3,,120,158,4,stridor\n")
+    out = tmp_path / "out"
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out)])
+    assert r.exit_code == 2
+    assert "row 3, column 'airway.mallampati'" in r.stderr and "[" not in r.stderr  # no bar
+    lines = (out / "summary.csv").read_text().splitlines()
+    assert [line.split(",")[0] for line in lines[1:]] == ["A2", "A3", "A1"]
+    assert sorted(p.name for p in out.iterdir()) == ["A1.json", "A3.json", "summary.csv"]
+
+
+def test_summary_sorted_by_level_and_flags_follow_their_rules() -> None:
+    rows = read_clinic_list(
+        HEADER + "L1,,70,165,1,\nL4,,80,165,3,stridor\nL2,,80,165,3,\n", "list.csv"
+    )
+    summary = [summary_row(r, build_plan(r.assessment)) for r in rows]  # type: ignore[arg-type]
+    ordered = sort_summary(summary)
+    assert [s.id for s in ordered] == ["L4", "L2", "L1"]
+    top = ordered[0]
+    assert top.level == 4 and set(top.flags) == set(FLAG_RULES)
+    assert "Stridor" in top.drivers
+    assert ordered[-1].flags == ()
+
+
+def test_rerun_refused_force_replaces_resume_keeps_and_redoes_changed(runner, tmp_path: Path):
+    f = _list(tmp_path, "A1,,80,165,1,\nA2,,90,160,2,\n")
+    out = tmp_path / "out"
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out)]).exit_code == 0
+    first = (out / "A1.json").read_bytes()
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out)])
+    assert r.exit_code == 2 and "--force" in r.stderr and "--resume" in r.stderr
+    (out / "A2.json").write_text('{"truncated')  # as if killed mid-write by another tool
+    (out / ".A1.json.abc123.tmp").write_text("left by a killed run")
+    f.write_text(HEADER + "A1,,80,165,1,\nA2,,90,160,3,\n")  # A2 reassessed
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out), "--resume"])
+    assert r.exit_code == 0 and "1 kept" in r.stderr
+    assert (out / "A1.json").read_bytes() == first
+    assert json.loads((out / "A2.json").read_text())["assessment"]["airway"]["mallampati"] == 3
+    assert not list(out.glob(".*.tmp"))
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out), "--force"]).exit_code == 0
+
+
+def test_pdfs_in_parallel_and_summary_pdf(runner, tmp_path: Path) -> None:
+    f = _list(tmp_path, "".join(f"P{i},,{60 + 5 * i},165,{1 + i % 4},\n" for i in range(6)))
+    out = tmp_path / "out"
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out), "--pdf", "--jobs", "2"])
+    assert r.exit_code == 0, r.output
+    for i in range(6):
+        assert (out / f"P{i}.pdf").read_bytes().startswith(b"%PDF")
+    assert (out / "summary.pdf").read_bytes().startswith(b"%PDF")
+
+
+def test_example_clinic_list_has_200_rows_six_marked_bad() -> None:
+    rows = read_clinic_list((ROOT / "examples" / "clinic-list.csv").read_text("utf-8"), "x")
+    assert len(rows) == 200
+    bad = [r for r in rows if r.assessment is None]
+    assert len(bad) == 6
+    levels = {build_plan(r.assessment).risk.level for r in rows[:60] if r.assessment}
+    assert levels == {1, 2, 3, 4}
