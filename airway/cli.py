@@ -217,6 +217,15 @@ def plan(
     force: ForceOpt = False,
     pdf: PdfOpt = None,
     paper: PaperOpt = Paper.A4,
+    since: Annotated[
+        str | None,
+        typer.Option(
+            "--since",
+            metavar="EARLIER",
+            help="An earlier assessment of her: show what changed.",
+            rich_help_panel=INPUT,
+        ),
+    ] = None,
     catalogue: CatalogueOpt = None,
     checklists: ChecklistsOpt = None,
     config: ConfigOpt = None,
@@ -236,6 +245,12 @@ def plan(
         else:
             assessment = read_assessment(file)  # type: ignore[arg-type]
         the_plan = _plan_for(assessment, catalogue, checklists, config)
+        if since is not None:
+            from .compare import compare_plans
+
+            earlier = _plan_for(read_assessment(since), catalogue, checklists, config)
+            changes = compare_plans(earlier, the_plan)
+            the_plan = the_plan.model_copy(update={"changes_since": changes})
         _write_pdf(the_plan, pdf, paper, force)
         if pdf is None or output is not None:
             _emit(_render(the_plan, fmt), output, force)
@@ -558,6 +573,36 @@ def batch(
     )
     if result.bad_rows:
         raise typer.Exit(2)
+
+
+@command(cls=GroupedCommand)
+def compare(
+    earlier: Annotated[str, typer.Argument(metavar="EARLIER", help="The earlier assessment.")],
+    later: Annotated[str, typer.Argument(metavar="LATER", help="The later assessment.")],
+    fmt: DataFormatOpt = DataFormat.text,
+    catalogue: CatalogueOpt = None,
+    checklists: ChecklistsOpt = None,
+    config: ConfigOpt = None,
+) -> None:
+    """What changed between two assessments of the same woman.
+
+    The changes that make the plan more dangerous come first.
+
+    Example: airway compare clinic.toml labour.toml
+    """
+    from .compare import compare_plans, render_comparison
+    from .loading import read_assessment
+
+    with _errors():
+        before = _plan_for(read_assessment(earlier), catalogue, checklists, config)
+        after = _plan_for(read_assessment(later), catalogue, checklists, config)
+    comparison = compare_plans(before, after)
+    if fmt is DataFormat.json:
+        sys.stdout.write(
+            json.dumps(comparison.model_dump(mode="json"), indent=2, sort_keys=True) + "\n"
+        )
+    else:
+        sys.stdout.write(render_comparison(comparison, after))
 
 
 @command(cls=GroupedCommand)

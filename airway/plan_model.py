@@ -58,6 +58,29 @@ class GeneratedBy(BaseModel):
     rules_version: str
 
 
+class Change(BaseModel):
+    """One difference between an earlier and a later assessment of the same woman."""
+
+    model_config = ConfigDict(frozen=True)
+    kind: str  # "identity", "level", "finding", "factor", "equipment", "dose", "oxygenation"
+    what: str
+    before: str
+    after: str
+    danger: float  # > 0: the later plan is more dangerous on this count; < 0: less; 0: neither
+
+
+class Comparison(BaseModel):
+    """What changed since an earlier assessment, the most dangerous changes first."""
+
+    model_config = ConfigDict(frozen=True)
+    earlier_sha256: str
+    earlier_assessed_on: str | None
+    later_assessed_on: str | None
+    more_dangerous: bool  # any change with danger > 0
+    plan_changed: bool  # level, tubes, supraglottic size, doses or decision differ
+    changes: tuple[Change, ...]
+
+
 class Plan(BaseModel):
     """Everything a renderer shows. Renderers format; they never compute."""
 
@@ -77,6 +100,7 @@ class Plan(BaseModel):
     warnings: tuple[str, ...]
     cautions: tuple[str, ...]
     checklists: tuple[RenderedChecklist, ...] = ()
+    changes_since: Comparison | None = None  # set by `airway plan LATER --since EARLIER`
 
     def dose(self, drug: str) -> Dose:
         """The computed dose of one drug."""

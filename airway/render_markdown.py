@@ -38,6 +38,14 @@ def render_markdown(plan: Plan) -> str:
         add(">")
     out.pop()
     add("")
+    if plan.changes_since is not None:
+        from .compare import change_lines, since_title
+
+        add(f"> **{since_title(plan.changes_since)}**")
+        add(">")
+        for line in change_lines(plan.changes_since):
+            add(f"> {_esc(line)}  ")
+        add("")
     add(f"## {level_heading(r.level)}")
     add("")
     add(f"Index **{r.index:.2f}** ({thresholds_text(r.thresholds)}). " + r.note)

@@ -352,6 +352,31 @@ def _range(low: float, high: float) -> str:
     return f"{low:g}" if low == high else f"{low:g}-{high:g}"
 
 
+def _since_box(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
+    """What changed since an earlier assessment: the six most dangerous changes."""
+    c = plan.changes_since
+    if c is None:
+        return []
+    from .compare import change_lines, since_title
+
+    text = "<br/>".join(escape(line) for line in change_lines(c, most=6))
+    box = Table(
+        [[Paragraph(f"<b>{escape(since_title(c))}</b><br/>{text}", st["small"])]],
+        colWidths=[width],
+    )
+    box.setStyle(
+        TableStyle(
+            [
+                ("FONTNAME", (0, 0), (-1, -1), FONT),
+                ("BOX", (0, 0), (-1, -1), 1.0, WARN if c.more_dangerous else ACCENT),
+                ("TOPPADDING", (0, 0), (-1, -1), 2),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 2),
+            ]
+        )
+    )
+    return [Spacer(0, 3), box]
+
+
 def _header(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
     label = plan.assessment.label
     who = plan.assessment.identity
@@ -687,7 +712,12 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
     # The head of page 1 is the same in either layout: make and measure it once.
     width = size[0] - (MARGINS_MM["left"] + MARGINS_MM["right"]) * mm
     usable = size[1] - (MARGINS_MM["top"] + MARGINS_MM["bottom"]) * mm
-    top = [*_header(plan, width, st), _key_block(plan, width, st), *_basis(plan, width, st)]
+    top = [
+        *_header(plan, width, st),
+        _key_block(plan, width, st),
+        *_since_box(plan, width, st),
+        *_basis(plan, width, st),
+    ]
     head = (top, min(usable, _height(top, width) + 2))
 
     def build(dense: bool) -> bytes:

@@ -321,6 +321,19 @@ def _compact(plan: Plan) -> list[str]:
     return lines
 
 
+def _since(plan: Plan, most: int | None = None) -> list[str]:
+    """The 'changed since' box, when the plan was made with --since."""
+    c = plan.changes_since
+    if c is None:
+        return []
+    from .compare import change_lines, since_title
+
+    lines = ["", "+" + "-" * 78, f"| {since_title(c).upper()}"]
+    for line in change_lines(c, most):
+        lines += _wrap(line, "|     ", "| ")
+    return [*lines, "+" + "-" * 78]
+
+
 def render_text(plan: Plan, compact: bool = False) -> str:
     """The plan as plain text at 80 columns; ``compact`` for one screen."""
     if compact:
@@ -330,9 +343,10 @@ def render_text(plan: Plan, compact: bool = False) -> str:
             f"input {plan.input_sha256[:8]}"
         ]
         lines += _wrap(" ".join(plan.cautions[:2]), "  ", "! ")
+        lines += _since(plan, most=6)
         lines += _compact(plan)
     else:
-        lines = _header(plan)
+        lines = _header(plan) + _since(plan)
         lines += (
             _risk(plan)
             + _not_assessed(plan)

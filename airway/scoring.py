@@ -124,7 +124,7 @@ def score(assessment: Assessment, body: BodySize) -> Risk:
     overrides = tuple(r.label for r in results if r.role == "override" and r.present)
     index_level = level_for_index(index)
     level = 4 if overrides else index_level
-    not_assessed = tuple(dict.fromkeys(_finding_name(r.id) for r in results if r.present is None))
+    not_assessed = tuple(dict.fromkeys(finding_name(r.id) for r in results if r.present is None))
     return Risk(
         level=level,
         label=LEVEL_LABELS[level],
@@ -161,5 +161,6 @@ _FINDING = {
 }
 
 
-def _finding_name(factor_id: str) -> str:
+def finding_name(factor_id: str) -> str:
+    """The finding a factor reads: the three Mallampati factors read one finding."""
     return _FINDING.get(factor_id, factor_id.replace("_", " "))

@@ -1,0 +1,97 @@
+"""Reassessment: what changed since the clinic, the most dangerous change first."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from airway import build_plan
+from airway.cli import app
+from airway.compare import compare_plans
+
+from .conftest import make
+
+CLINIC = make(
+    assessed_on="2026-11-12",
+    patient={"weight_kg": 92, "height_cm": 163, "in_labour": False},
+    airway={"mallampati": 2, "thyromental_cm": 7},
+    preeclampsia={"status": "none"},
+)
+# In labour the Mallampati class rose by one (as in 38% of women, Kodali 2008) and
+# pre-eclampsia brought a voice change.
+LABOUR = make(
+    assessed_on="2026-11-30",
+    patient={"weight_kg": 95, "height_cm": 163, "in_labour": True},
+    airway={"mallampati": 3},
+    preeclampsia={"status": "without_severe_features", "signs": ["voice_change"]},
+    context={"urgency_category": 2},
+)
+
+
+def test_more_dangerous_changes_come_first() -> None:
+    c = compare_plans(build_plan(CLINIC), build_plan(LABOUR))
+    assert c.more_dangerous and c.plan_changed
+    assert c.changes[0].kind == "level" and c.changes[0].danger > 0
+    dangers = [ch.danger for ch in c.changes]
+    assert dangers == sorted(dangers, reverse=True)
+    what = {ch.what: ch for ch in c.changes}
+    assert what["airway.mallampati"].before == "2" and what["airway.mallampati"].after == "3"
+    assert what["airway.thyromental_cm"].after == "not assessed"  # assessed -> not assessed
+    assert what["airway.thyromental_cm"].danger > 0
+    assert what["minutes to SpO2 90% (model estimate)"].danger > 0
+    assert what["tracheal tubes"].danger > 0  # smaller tubes: a narrower airway expected
+
+
+def test_same_assessment_nothing_changed() -> None:
+    c = compare_plans(build_plan(CLINIC), build_plan(CLINIC))
+    assert c.changes == () and not c.more_dangerous and not c.plan_changed
+
+
+def test_improvement_is_not_marked_dangerous() -> None:
+    c = compare_plans(build_plan(LABOUR), build_plan(CLINIC))
+    assert not c.more_dangerous and c.plan_changed
+    level = next(ch for ch in c.changes if ch.kind == "level")
+    assert level.danger < 0
+
+
+def test_different_record_numbers_warn_of_two_women() -> None:
+    a = make(identity={"record_number": "A-1"})
+    b = make(identity={"record_number": "B-2"})
+    c = compare_plans(build_plan(a), build_plan(b))
+    assert c.changes[0].kind == "identity" and "two different women" in c.changes[0].what
+    assert "A-1" not in c.model_dump_json() and "B-2" not in c.model_dump_json()
+
+
+def _files(tmp_path: Path) -> tuple[Path, Path]:
+    a, b = tmp_path / "clinic.json", tmp_path / "labour.json"
+    a.write_text(CLINIC.model_dump_json(exclude_defaults=True))
+    b.write_text(LABOUR.model_dump_json(exclude_defaults=True))
+    return a, b
+
+
+def test_compare_command_text_and_json(runner, tmp_path: Path) -> None:
+    a, b = _files(tmp_path)
+    r = runner.invoke(app, ["compare", str(a), str(b)])
+    assert r.exit_code == 0, r.output
+    assert "MORE DANGEROUS NOW" in r.stdout and "! airway level" in r.stdout
+    assert "decision aid" in r.stdout and "immediately before induction" in r.stdout
+    assert max(map(len, r.stdout.splitlines())) <= 80
+    data = json.loads(runner.invoke(app, ["compare", str(a), str(b), "-f", "json"]).stdout)
+    assert data["more_dangerous"] is True and data["changes"][0]["kind"] == "level"
+
+
+def test_plan_since_carries_the_box_in_every_format(runner, tmp_path: Path) -> None:
+    a, b = _files(tmp_path)
+    for fmt in ("text", "markdown"):
+        r = runner.invoke(app, ["plan", str(b), "--since", str(a), "-f", fmt])
+        assert r.exit_code == 0 and "Changed since the assessment of 2026-11-12".lower() in (
+            r.stdout.lower()
+        )
+    data = json.loads(runner.invoke(app, ["plan", str(b), "--since", str(a), "-f", "json"]).stdout)
+    assert data["changes_since"]["earlier_assessed_on"] == "2026-11-12"
+    pdf = tmp_path / "p.pdf"
+    assert runner.invoke(app, ["plan", str(b), "--since", str(a), "--pdf", str(pdf)]).exit_code == 0
+    from pypdf import PdfReader
+
+    text = " ".join(p.extract_text() for p in PdfReader(pdf).pages)
+    assert "Changed since the assessment of 2026-11-12" in " ".join(text.split())
