@@ -11,6 +11,7 @@ import json
 import sys
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
+from datetime import date
 from enum import StrEnum
 from importlib import resources
 from pathlib import Path
@@ -603,6 +604,64 @@ def compare(
         )
     else:
         sys.stdout.write(render_comparison(comparison, after))
+
+
+def _today() -> date:
+    return date.today()  # the clock lives here, never in the library
+
+
+@command(cls=GroupedCommand)
+def board(
+    folder: Annotated[Path, typer.Argument(metavar="DIR", help="A folder of saved JSON plans.")],
+    output: Annotated[
+        Path,
+        typer.Option(
+            "--output", "-o", metavar="FILE", help="PDF file to write.", rich_help_panel=OUT
+        ),
+    ],
+    max_age_days: Annotated[
+        int,
+        typer.Option(
+            "--max-age-days",
+            metavar="DAYS",
+            min=0,
+            help="Mark plans older than this.",
+            rich_help_panel=INPUT,
+        ),
+    ] = 14,
+    today: Annotated[
+        str | None,
+        typer.Option(
+            "--today", metavar="YYYY-MM-DD", help="Date to age plans from.", rich_help_panel=INPUT
+        ),
+    ] = None,
+    paper: PaperOpt = Paper.A4,
+    force: ForceOpt = False,
+) -> None:
+    """The labour ward's airway board, from a folder of plans.
+
+    One line per woman, highest airway level first; old plans are marked.
+
+    Example: airway board plans -o board.pdf
+    """
+    from .board import board_rows, load_plans
+    from .output import write_atomic
+    from .render_board import render_board_pdf
+
+    try:
+        day = _today() if today is None else date.fromisoformat(today)
+    except ValueError:
+        raise typer.BadParameter("write the date as YYYY-MM-DD", param_hint="--today") from None
+    if not folder.is_dir():
+        raise typer.BadParameter(f"{folder} is not a folder", param_hint="DIR")
+    with _errors():
+        plans, notes = load_plans(folder)
+        rows = board_rows(plans, day, max_age_days)
+        pdf = render_board_pdf(rows, day.isoformat(), max_age_days, notes, paper.value)
+        write_atomic(output, pdf, force=force)
+    for note in notes:
+        typer.echo(f"airway: {note}", err=True)
+    typer.echo(f"wrote {output} ({len(rows)} women)", err=True)
 
 
 @command(cls=GroupedCommand)

@@ -237,7 +237,18 @@ def test_start_up_does_not_import_reportlab() -> None:
     assert subprocess.run([sys.executable, "-c", code]).returncode == 0
 
 
-COMMANDS = ("", "plan", "quick", "oxygen", "sheet", "batch", "factors", "schema")
+COMMANDS = (
+    "",
+    "plan",
+    "quick",
+    "oxygen",
+    "sheet",
+    "batch",
+    "compare",
+    "board",
+    "factors",
+    "schema",
+)
 
 
 @pytest.mark.parametrize("name", COMMANDS)

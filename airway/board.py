@@ -1,0 +1,84 @@
+"""The labour ward's airway board: one line per woman, from a folder of saved plans.
+
+Kept at the coordinator's desk so the on-call anaesthetist knows, before the
+3 a.m. call, which women carry an airway risk. Highest airway level first; a
+plan older than the allowed age, without an assessment date, or made under
+other rules is marked. Pure apart from :func:`load_plans`, which reads files.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass
+from datetime import date
+from pathlib import Path
+
+from pydantic import ValidationError
+
+from .decision import SHORT, by_category_text
+from .plan import RULES_VERSION
+from .plan_model import Plan
+
+DEFAULT_MAX_AGE_DAYS = 14  # project rule: a clinic plan older than two weeks is checked again
+SKIPPED = ("summary",)  # the clinic summary lives in the same folder
+
+
+@dataclass(frozen=True)
+class BoardRow:
+    name: str  # the plan file's name without .json (the clinic's id)
+    level: int
+    first_tube_mm: float
+    supraglottic_size: float
+    minutes_to_spo2_90: str
+    decision: str
+    assessed_on: str
+    warnings: tuple[str, ...]
+
+
+def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
+    """Every saved JSON plan in ``folder``, and a note for each file that is not one."""
+    plans: list[tuple[str, Plan]] = []
+    skipped: list[str] = []
+    for path in sorted(folder.glob("*.json")):
+        if path.stem in SKIPPED:
+            continue
+        try:
+            plans.append((path.stem, Plan.model_validate(json.loads(path.read_text("utf-8")))))
+        except (OSError, ValueError, ValidationError):
+            skipped.append(f"{path.name}: not a plan this version can read; left off the board")
+    return plans, skipped
+
+
+def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow:
+    warnings = []
+    assessed = plan.assessment.assessed_on
+    if assessed is None:
+        warnings.append("no assessment date: reassess")
+    elif (today - assessed).days > max_age_days:
+        warnings.append(f"{(today - assessed).days} days old: reassess")
+    if plan.generated_by.rules_version != RULES_VERSION:
+        warnings.append(f"rules {plan.generated_by.rules_version}, now {RULES_VERSION}: replan")
+    oxy = plan.oxygenation
+    minutes = oxy.minutes_to_spo2_90
+    return BoardRow(
+        name=name,
+        level=plan.risk.level,
+        first_tube_mm=plan.equipment.tracheal_tube_mm.first,
+        supraglottic_size=plan.equipment.supraglottic_size,
+        minutes_to_spo2_90=f"> {oxy.horizon_minutes:g}" if minutes is None else f"{minutes:g}",
+        decision=(
+            by_category_text(plan.decision.if_category)
+            if plan.decision.if_category
+            else SHORT[plan.decision.recommendation]
+        ),
+        assessed_on="" if assessed is None else assessed.isoformat(),
+        warnings=tuple(warnings),
+    )
+
+
+def board_rows(
+    plans: list[tuple[str, Plan]], today: date, max_age_days: int = DEFAULT_MAX_AGE_DAYS
+) -> list[BoardRow]:
+    """One row per plan, highest airway level first, then by name."""
+    rows = [board_row(name, plan, today, max_age_days) for name, plan in plans]
+    return sorted(rows, key=lambda r: (-r.level, r.name))

@@ -1,0 +1,115 @@
+"""The ward's airway board as a landscape PDF (one page for a ward's worth of women)."""
+
+from __future__ import annotations
+
+import io
+
+from reportlab.lib.pagesizes import landscape
+from reportlab.lib.units import mm
+from reportlab.platypus import SimpleDocTemplate, Spacer
+
+from . import __version__
+from .board import BoardRow
+from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
+from .render_pdf import (
+    FONT,
+    FONT_BOLD,
+    PAPER,
+    WARN,
+    _grid,
+    _NumberedCanvas,
+    _p,
+    _register_fonts,
+    _styles,
+)
+from .scoring import LEVEL_LABELS
+
+
+def render_board_pdf(
+    rows: list[BoardRow], today: str, max_age_days: int, notes: list[str], paper: str = "A4"
+) -> bytes:
+    """The board as PDF bytes."""
+    _register_fonts()
+    st = _styles()
+    small = st["small"]
+    buf = io.BytesIO()
+    doc = SimpleDocTemplate(
+        buf,
+        pagesize=landscape(PAPER[paper]),
+        leftMargin=10 * mm,
+        rightMargin=10 * mm,
+        topMargin=9 * mm,
+        bottomMargin=13 * mm,
+        title="Labour ward airway board",
+        author="airway",
+        creator=f"airway {__version__}",
+        invariant=1,
+        initialFontName=FONT,
+        lang="en-GB",
+    )
+    width = doc.width
+    table: list[list[object]] = [
+        [
+            "Woman (id)",
+            "Airway level",
+            "First tube",
+            "SGA",
+            "SpO2 90%",
+            "If intubation fails",
+            "Assessed",
+            "Check",
+        ]
+    ]
+    for r in rows:
+        table.append(
+            [
+                _p(r.name, st["bold"]),
+                _p(f"{r.level}: {LEVEL_LABELS[r.level]}", st["body"]),
+                f"{r.first_tube_mm:.1f} mm",
+                f"size {r.supraglottic_size:g}",
+                f"{r.minutes_to_spo2_90} min",
+                _p(r.decision, st["body"]),
+                r.assessed_on or "not recorded",
+                _p("; ".join(r.warnings), st["caution"]) if r.warnings else "",
+            ]
+        )
+    fractions = (0.13, 0.15, 0.08, 0.07, 0.08, 0.14, 0.10, 0.25)
+    grid = _grid(table, [width * f for f in fractions])
+    grid.setStyle(
+        [
+            ("FONTSIZE", (0, 0), (-1, -1), 9),
+            ("LEADING", (0, 0), (-1, -1), 11),
+            ("TOPPADDING", (0, 0), (-1, -1), 2),
+            ("BOTTOMPADDING", (0, 0), (-1, -1), 2),
+            ("FONTNAME", (0, 0), (-1, 0), FONT_BOLD),
+        ]
+    )
+    for i, r in enumerate(rows, start=1):
+        if r.level >= 3:
+            grid.setStyle([("LINEBEFORE", (0, i), (0, i), 3, WARN)])
+    story: list[object] = [
+        _p(f"Labour ward airway board, printed {today}: {len(rows)} women", st["h1"]),
+        _p(f"{CAUTION_AID} {CAUTION_REASSESS}", st["caution"]),
+        Spacer(0, 3),
+        grid,
+        Spacer(0, 4),
+        _p(
+            f"Highest airway level first (a bar marks levels 3 and 4). 'Check' marks a plan "
+            f"older than {max_age_days} days, without an assessment date, or made under "
+            f"rules other than {RULES_VERSION}: reassess and replan before relying on it. "
+            "SpO2 90% is the predicted minutes of apnoea (model estimate); the full plan, "
+            "with its sources, is in each woman's plan file.",
+            small,
+        ),
+        *(_p(n, small) for n in notes),
+    ]
+    footer = (
+        f"airway {__version__}, rules {RULES_VERSION}. "
+        "Decision aid: not a substitute for clinical judgement."
+    )
+
+    def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
+        return _NumberedCanvas(*args, footer=footer, pages=[], **kwargs)
+
+    doc.build(story, canvasmaker=canvas)
+    return buf.getvalue()

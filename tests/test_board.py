@@ -1,0 +1,73 @@
+"""The ward's airway board: highest level first, old or out-of-date plans marked."""
+
+from __future__ import annotations
+
+import json
+from datetime import date
+from pathlib import Path
+
+from pypdf import PdfReader
+
+from airway import build_plan
+from airway.board import board_rows, load_plans
+from airway.cli import app
+from airway.render_json import render_json
+
+from .conftest import make
+
+
+def _save(folder: Path, name: str, **sections: object) -> None:
+    (folder / f"{name}.json").write_text(render_json(build_plan(make(**sections))))
+
+
+def _ward(tmp_path: Path) -> Path:
+    folder = tmp_path / "ward"
+    folder.mkdir()
+    _save(folder, "W1", assessed_on="2026-11-30", airway={"mallampati": 1})
+    _save(
+        folder,
+        "W2",
+        assessed_on="2026-11-01",
+        airway={"mallampati": 3},
+        preeclampsia={"signs": ["stridor"]},
+    )
+    _save(folder, "W3", airway={"mallampati": 3})  # no date
+    old = json.loads((folder / "W1.json").read_text())
+    old["generated_by"]["rules_version"] = "2026.1.1"
+    (folder / "W4.json").write_text(json.dumps(old))
+    (folder / "notes.json").write_text('{"not": "a plan"}')
+    (folder / "summary.json").write_text("{}")
+    return folder
+
+
+def test_rows_sorted_and_warned(tmp_path: Path) -> None:
+    plans, skipped = load_plans(_ward(tmp_path))
+    assert [n for n, _ in plans] == ["W1", "W2", "W3", "W4"]
+    assert skipped == ["notes.json: not a plan this version can read; left off the board"]
+    rows = board_rows(plans, date(2026, 12, 2), max_age_days=14)
+    assert rows[0].name == "W2" and rows[0].level == 4
+    by = {r.name: r for r in rows}
+    assert by["W1"].warnings == ()
+    assert by["W2"].warnings == ("31 days old: reassess",)
+    assert by["W3"].warnings == ("no assessment date: reassess",)
+    assert any("rules 2026.1.1" in w for w in by["W4"].warnings)
+    assert "category" in by["W1"].decision  # a clinic plan: the choice by urgency
+
+
+def test_board_command_one_landscape_page(runner, tmp_path: Path) -> None:
+    out = tmp_path / "board.pdf"
+    r = runner.invoke(app, ["board", str(_ward(tmp_path)), "-o", str(out), "--today", "2026-12-02"])
+    assert r.exit_code == 0, r.output
+    reader = PdfReader(out)
+    assert len(reader.pages) == 1
+    box = reader.pages[0].mediabox
+    assert float(box.width) > float(box.height)  # landscape
+    text = " ".join(reader.pages[0].extract_text().split())
+    assert "31 days old: reassess" in text and "decision aid" in text
+    assert "notes.json" in r.stderr
+
+
+def test_board_bad_date_and_missing_folder_exit_2(runner, tmp_path: Path) -> None:
+    out = str(tmp_path / "b.pdf")
+    assert runner.invoke(app, ["board", str(tmp_path), "-o", out, "--today", "2/12"]).exit_code == 2
+    assert runner.invoke(app, ["board", str(tmp_path / "no"), "-o", out]).exit_code == 2
