@@ -273,6 +273,57 @@ def _hidden(name: str) -> typer.models.OptionInfo:
     return typer.Option(name, hidden=True)
 
 
+def _ask(prompt: str) -> str:
+    """One answer from the keyboard (or a pipe); the prompt goes to stderr."""
+    sys.stderr.write(prompt)
+    sys.stderr.flush()
+    line = sys.stdin.readline()
+    if line == "":
+        raise EOFError
+    return line.rstrip("\r\n")
+
+
+@command(cls=GroupedCommand)
+def assess(
+    output: Annotated[
+        Path | None,
+        typer.Option(
+            "--output",
+            "-o",
+            metavar="FILE",
+            help="Save the assessment (TOML).",
+            rich_help_panel=OUT,
+        ),
+    ] = None,
+    force: ForceOpt = False,
+    catalogue: CatalogueOpt = None,
+) -> None:
+    """Guided entry: each finding asked in turn, as the examination runs.
+
+    Blank means not assessed; a bad answer is asked again. Ends with the one-screen
+    plan; -o saves the assessment for `airway plan`. Ctrl-C saves nothing.
+    """
+    from .guided import Stopped, assessment_toml, guided_entry
+    from .output import write_atomic
+
+    if output is not None and output.exists() and not force:
+        typer.echo(f"airway: {output} already exists; use --force to replace it", err=True)
+        raise typer.Exit(2)
+    try:
+        assessment = guided_entry(_ask, lambda text: typer.echo(text, err=True))
+    except Stopped:
+        typer.echo("\nairway: stopped before the end: nothing saved", err=True)
+        raise typer.Exit(1) from None
+    with _errors():
+        the_plan = _plan_for(assessment, catalogue)
+        sys.stdout.write(_render(the_plan, Format.text, compact=True))
+        if output is None:
+            typer.echo("not saved: give -o FILE to keep this assessment", err=True)
+        else:
+            write_atomic(output, assessment_toml(assessment).encode("utf-8"), force=force)
+            typer.echo(f"wrote {output}", err=True)
+
+
 @command(cls=GroupedCommand)
 def quick(
     weight_kg: Annotated[float, _opt("--weight-kg", "KG", "Current weight, kg.", PAT)],

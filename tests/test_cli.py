@@ -244,6 +244,7 @@ COMMANDS = (
     "oxygen",
     "sheet",
     "batch",
+    "assess",
     "compare",
     "board",
     "factors",

@@ -1,0 +1,162 @@
+"""Guided entry: answers typed as the examination runs, checked as they come."""
+
+from __future__ import annotations
+
+import contextlib
+import json
+import os
+import pty
+import select
+import sys
+import time
+import tomllib
+from pathlib import Path
+
+from airway.cli import app
+from airway.guided import GROUPS, assessment_toml, guided_entry
+
+ORDER = [path for _heading, paths in GROUPS for path in paths]
+ANSWERS = {
+    "assessed_on": "2026-12-01",
+    "patient.weight_kg": "98",
+    "patient.height_cm": "165",
+    "patient.in_labour": "yes",
+    "airway.mallampati": "3",
+    "airway.large_breasts": "yes",
+    "preeclampsia.status": "with_severe_features",
+    "preeclampsia.signs": "voice_change",
+    "context.urgency_category": "1",
+}
+
+
+def _script(**bad_first: str) -> str:
+    """One line per question, in order; a bad answer first where asked for."""
+    lines = []
+    for path in ORDER:
+        if path in bad_first:
+            lines.append(bad_first[path])
+        lines.append(ANSWERS.get(path, ""))
+    return "\n".join(lines) + "\n"
+
+
+def test_every_question_is_a_model_field() -> None:
+    from airway.fields import BY_PATH
+
+    assert set(ORDER) <= set(BY_PATH) and len(ORDER) == len(set(ORDER))
+
+
+def test_piped_answers_give_the_same_plan_as_the_saved_file(runner, tmp_path: Path) -> None:
+    out = tmp_path / "a.toml"
+    r = runner.invoke(app, ["assess", "-o", str(out)], input=_script())
+    assert r.exit_code == 0, r.output
+    assert "AIRWAY LEVEL" in r.stdout and "decision aid" in r.stdout
+    assert "airway level 3 so far" in r.stderr  # the running level after Mallampati 3
+    saved = tomllib.loads(out.read_text())
+    assert saved["airway"]["mallampati"] == 3 and saved["patient"]["in_labour"] is True
+    quick = runner.invoke(
+        app,
+        [
+            "quick",
+            "--weight-kg",
+            "98",
+            "--height-cm",
+            "165",
+            "--in-labour",
+            "--mallampati",
+            "3",
+            "--large-breasts",
+            "--preeclampsia",
+            "with_severe_features",
+            "--signs",
+            "voice_change",
+            "--urgency-category",
+            "1",
+            "-f",
+            "json",
+        ],
+    )
+    from_file = json.loads(runner.invoke(app, ["plan", str(out), "-f", "json"]).stdout)
+    assert from_file["risk"] == json.loads(quick.stdout)["risk"]
+
+
+def test_bad_answers_are_asked_again_never_defaulted(runner, tmp_path: Path) -> None:
+    script = _script(
+        **{
+            "patient.weight_kg": "198 lb",
+            "airway.mallampati": "5",
+            "airway.large_breasts": "maybe",
+            "preeclampsia.signs": "hoarse",
+        }
+    )
+    out = tmp_path / "a.toml"
+    r = runner.invoke(app, ["assess", "-o", str(out)], input=script)
+    assert r.exit_code == 0, r.output
+    assert r.stderr.count("try again") == 4
+    assert "between 1 and 4" in r.stderr and "must be yes or no" in r.stderr
+    assert tomllib.loads(out.read_text())["airway"]["mallampati"] == 3
+
+
+def test_required_weight_cannot_be_left_blank(runner) -> None:
+    r = runner.invoke(app, ["assess"], input=_script(**{"patient.weight_kg": ""}))
+    assert r.exit_code == 0 and "needed for every plan" in r.stderr
+    assert "not saved" in r.stderr
+
+
+def test_end_of_input_saves_nothing(runner, tmp_path: Path) -> None:
+    out = tmp_path / "a.toml"
+    r = runner.invoke(app, ["assess", "-o", str(out)], input="2026-12-01\n98\n165\n")
+    assert r.exit_code == 1 and "nothing saved" in r.stderr
+    assert not out.exists() and list(tmp_path.iterdir()) == []
+
+
+def test_refuses_to_overwrite_before_asking(runner, tmp_path: Path) -> None:
+    out = tmp_path / "a.toml"
+    out.write_text("keep me")
+    r = runner.invoke(app, ["assess", "-o", str(out)], input=_script())
+    assert r.exit_code == 2 and "--force" in r.stderr and "Current weight" not in r.stderr
+    assert out.read_text() == "keep me"
+
+
+def test_toml_round_trip_is_exact() -> None:
+    answers = iter(_script().splitlines())
+    a = guided_entry(lambda _prompt: next(answers), lambda _text: None)
+    from airway.loading import parse_assessment
+
+    assert parse_assessment(assessment_toml(a), "x", "toml") == a
+
+
+def _read_until(fd: int, marker: bytes, seconds: float = 20) -> bytes:
+    seen = b""
+    end = time.monotonic() + seconds
+    while marker not in seen and time.monotonic() < end:
+        ready, _w, _x = select.select([fd], [], [], 0.2)
+        if ready:
+            try:
+                seen += os.read(fd, 4096)
+            except OSError:
+                break
+    return seen
+
+
+def test_through_a_terminal_ctrl_c_saves_nothing(tmp_path: Path) -> None:
+    """Driven through a pseudo-terminal, as a clinician types: answers, then Ctrl-C."""
+    out = tmp_path / "a.toml"
+    pid, fd = pty.fork()  # the child gets the terminal as its controlling terminal
+    if pid == 0:  # pragma: no cover - the child process
+        os.execv(sys.executable, [sys.executable, "-m", "airway", "assess", "-o", str(out)])
+    try:
+        assert b"Date of this assessment" in _read_until(fd, b"Date of this assessment")
+        os.write(fd, b"2026-12-01\n")
+        assert b"Current weight" in _read_until(fd, b"Current weight")
+        os.write(fd, b"98\n")
+        assert b"Height" in _read_until(fd, b"Height")
+        os.write(fd, b"\x03")  # Ctrl-C: the terminal sends SIGINT
+        text = _read_until(fd, b"nothing saved")
+        assert b"nothing saved" in text and b"Traceback" not in text
+        _pid, status = os.waitpid(pid, 0)
+        assert os.waitstatus_to_exitcode(status) == 1
+    finally:
+        with contextlib.suppress(ProcessLookupError):
+            os.kill(pid, 9)
+        os.close(fd)
+    assert not out.exists()
