@@ -13,7 +13,7 @@ from __future__ import annotations
 import json
 import os
 from collections.abc import Callable
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import Future, ProcessPoolExecutor
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -122,48 +122,54 @@ def run_batch(
             f"{out} already holds {len(existing)} of this list's outputs (e.g. "
             f"{existing[0]}); use --force to replace them or --resume to keep finished rows",
         )
+    from .render_json import render_json
+
     good = [r for r in rows if r.assessment is not None]
     total = len(good)
-    done = written = kept = 0
-    plans: dict[str, Plan] = {}
-    pdf_jobs: list[tuple[Plan, str, str]] = []
-    for row in good:
-        assert row.assessment is not None
-        plan = build_plan(row.assessment, catalogue, checklists)
-        plans[row.id] = plan
-        if resume and _still_matches(out, row, pdf):
-            kept += 1
-            done += 1
-            if progress:
-                progress(done, total)
-            continue
-        from .render_json import render_json
+    counts = {"done": 0, "written": 0, "kept": 0}
+    lines: dict[int, SummaryRow] = {}
 
-        write_atomic(out / f"{row.id}.json", render_json(plan).encode("utf-8"), force=True)
-        written += 1
-        if pdf:
-            pdf_jobs.append((plan, paper, str(out / f"{row.id}.pdf")))
-        else:
-            done += 1
-            if progress:
-                progress(done, total)
-    if pdf_jobs:
-        workers = jobs or os.cpu_count() or 1
-        if workers == 1 or len(pdf_jobs) == 1:
-            finished = map(_write_pdf, pdf_jobs)
-            for _path in finished:
-                written += 1
-                done += 1
-                if progress:
-                    progress(done, total)
-        else:
-            with ProcessPoolExecutor(max_workers=workers) as pool:
-                for _path in pool.map(_write_pdf, pdf_jobs, chunksize=4):
-                    written += 1
-                    done += 1
-                    if progress:
-                        progress(done, total)
-    summary = tuple(summary_row(r, plans.get(r.id)) for r in rows)
+    def finished(files: int) -> None:
+        counts["done"] += 1
+        counts["written"] += files
+        if progress:
+            progress(counts["done"], total)
+
+    workers = 1 if not pdf else (jobs or os.cpu_count() or 1)
+    # Plans are summarised and let go as they are made, and at most a few PDFs wait
+    # for a worker, so memory stays flat however long the list.
+    pool = ProcessPoolExecutor(max_workers=workers) if workers > 1 else None
+    pending: list[Future[str]] = []
+    try:
+        for row in good:
+            assert row.assessment is not None
+            plan = build_plan(row.assessment, catalogue, checklists)
+            lines[row.number] = summary_row(row, plan)
+            if resume and _still_matches(out, row, pdf):
+                counts["kept"] += 1
+                finished(0)
+                continue
+            write_atomic(out / f"{row.id}.json", render_json(plan).encode("utf-8"), force=True)
+            if not pdf:
+                finished(1)
+                continue
+            job = (plan, paper, str(out / f"{row.id}.pdf"))
+            if pool is None:
+                _write_pdf(job)
+                finished(2)
+                continue
+            pending.append(pool.submit(_write_pdf, job))
+            while len(pending) >= 4 * workers:
+                pending.pop(0).result()
+                finished(2)
+        for future in pending:
+            future.result()
+            finished(2)
+    finally:
+        if pool is not None:
+            pool.shutdown(cancel_futures=True)
+    written, kept = counts["written"], counts["kept"]
+    summary = tuple(lines.get(r.number) or summary_row(r, None) for r in rows)
     write_atomic(out / SUMMARY_CSV, summary_csv(list(summary)).encode("utf-8"), force=True)
     written += 1
     if pdf:

@@ -600,6 +600,9 @@ def batch(
     """
     from .batch import run_batch
 
+    # A long list makes many short-lived reportlab objects with reference cycles:
+    # collect them (main() turns the collector off for one-shot commands).
+    gc.enable()
     with _errors():
         cat, lists, _paths = _unit(config, catalogue, checklists)
         result = run_batch(
