@@ -2,25 +2,20 @@
 
 from __future__ import annotations
 
-import io
-
-from reportlab.lib.pagesizes import landscape
-from reportlab.lib.units import mm
-from reportlab.platypus import SimpleDocTemplate, Spacer
+from reportlab.platypus import Spacer
 
 from . import __version__
 from .board import BoardRow
 from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
 from .render_pdf import (
-    FONT,
     FONT_BOLD,
-    PAPER,
     WARN,
     _grid,
-    _NumberedCanvas,
     _p,
     _register_fonts,
     _styles,
+    build_landscape_pdf,
+    landscape_width,
 )
 from .scoring import LEVEL_LABELS
 
@@ -29,25 +24,10 @@ def render_board_pdf(
     rows: list[BoardRow], today: str, max_age_days: int, notes: list[str], paper: str = "A4"
 ) -> bytes:
     """The board as PDF bytes."""
-    _register_fonts()
+    _register_fonts()  # paragraphs resolve bold and regular faces as they are made
     st = _styles()
     small = st["small"]
-    buf = io.BytesIO()
-    doc = SimpleDocTemplate(
-        buf,
-        pagesize=landscape(PAPER[paper]),
-        leftMargin=10 * mm,
-        rightMargin=10 * mm,
-        topMargin=9 * mm,
-        bottomMargin=13 * mm,
-        title="Labour ward airway board",
-        author="airway",
-        creator=f"airway {__version__}",
-        invariant=1,
-        initialFontName=FONT,
-        lang="en-GB",
-    )
-    width = doc.width
+    width = landscape_width(paper)
     table: list[list[object]] = [
         [
             "Woman (id)",
@@ -107,9 +87,4 @@ def render_board_pdf(
         f"airway {__version__}, rules {RULES_VERSION}. "
         "Decision aid: not a substitute for clinical judgement."
     )
-
-    def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
-        return _NumberedCanvas(*args, footer=footer, pages=[], **kwargs)
-
-    doc.build(story, canvasmaker=canvas)
-    return buf.getvalue()
+    return build_landscape_pdf(story, paper, "Labour ward airway board", footer)

@@ -40,12 +40,14 @@ from reportlab.platypus import (
     PageBreak,
     PageTemplate,
     Paragraph,
+    SimpleDocTemplate,
     Spacer,
     Table,
     TableStyle,
 )
 from reportlab.platypus.doctemplate import LayoutError
 
+from . import __version__
 from .decision import DECISION_TITLE, SHORT, by_category_text
 from .doses import SCALAR_LABEL, Dose
 from .errors import AirwayError
@@ -613,6 +615,44 @@ def _closing(plan: Plan, st: dict[str, ParagraphStyle]) -> list[object]:
     # The first two cautions head the page; the rest close it.
     out.append(Paragraph("<b>Cautions:</b> " + escape(" ".join(plan.cautions[2:])), small))
     return out
+
+
+LANDSCAPE_MARGINS_MM = (10.0, 10.0, 9.0, 13.0)  # left, right, top, bottom
+
+
+def landscape_width(paper: str) -> float:
+    """The text width of a landscape page with :data:`LANDSCAPE_MARGINS_MM`."""
+    left, right, _top, _bottom = LANDSCAPE_MARGINS_MM
+    return PAPER[paper][1] - (left + right) * mm
+
+
+def build_landscape_pdf(story: list[object], paper: str, title: str, footer: str) -> bytes:
+    """A landscape document (clinic summary, ward board): fonts, footer, page x of y."""
+    from reportlab.lib.pagesizes import landscape
+
+    _register_fonts()
+    left, right, top, bottom = LANDSCAPE_MARGINS_MM
+    buf = io.BytesIO()
+    doc = SimpleDocTemplate(
+        buf,
+        pagesize=landscape(PAPER[paper]),
+        leftMargin=left * mm,
+        rightMargin=right * mm,
+        topMargin=top * mm,
+        bottomMargin=bottom * mm,
+        title=title,
+        author="airway",
+        creator=f"airway {__version__}",
+        invariant=1,
+        initialFontName=FONT,
+        lang="en-GB",
+    )
+
+    def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
+        return _NumberedCanvas(*args, footer=footer, pages=[], **kwargs)
+
+    doc.build(story, canvasmaker=canvas)
+    return buf.getvalue()
 
 
 class PdfLayoutError(AirwayError):

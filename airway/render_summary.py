@@ -7,17 +7,22 @@ footer with the patient plan (:mod:`airway.render_pdf`).
 
 from __future__ import annotations
 
-import io
 from xml.sax.saxutils import escape
 
-from reportlab.lib.pagesizes import landscape
-from reportlab.lib.units import mm
-from reportlab.platypus import Paragraph, SimpleDocTemplate, Spacer
+from reportlab.platypus import Paragraph, Spacer
 
 from . import __version__
 from .clinic import FLAG_RULES, SummaryRow, sort_summary
 from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
-from .render_pdf import FONT, FONT_BOLD, PAPER, _grid, _NumberedCanvas, _p, _register_fonts, _styles
+from .render_pdf import (
+    FONT_BOLD,
+    _grid,
+    _p,
+    _register_fonts,
+    _styles,
+    build_landscape_pdf,
+    landscape_width,
+)
 from .scoring import LEVEL_LABELS
 from .sources import source_label
 
@@ -30,26 +35,10 @@ FLAG_WORDS = {
 
 def render_summary_pdf(rows: list[SummaryRow], paper: str = "A4") -> bytes:
     """The summary table as PDF bytes (one page when it fits)."""
-    _register_fonts()
+    _register_fonts()  # paragraphs resolve bold and regular faces as they are made
     st = _styles()
     small = st["small"]
-    size = landscape(PAPER[paper])
-    buf = io.BytesIO()
-    doc = SimpleDocTemplate(
-        buf,
-        pagesize=size,
-        leftMargin=10 * mm,
-        rightMargin=10 * mm,
-        topMargin=9 * mm,
-        bottomMargin=13 * mm,
-        title="Clinic summary: airway plans",
-        author="airway",
-        creator=f"airway {__version__}",
-        invariant=1,
-        initialFontName=FONT,
-        lang="en-GB",
-    )
-    width = doc.width
+    width = landscape_width(paper)
     ordered = sort_summary(rows)
     bad = sum(1 for r in rows if r.level is None)
     table: list[list[object]] = [
@@ -101,9 +90,4 @@ def render_summary_pdf(rows: list[SummaryRow], paper: str = "A4") -> bytes:
         f"airway {__version__}, rules {RULES_VERSION}. "
         "Decision aid: not a substitute for clinical judgement."
     )
-
-    def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
-        return _NumberedCanvas(*args, footer=footer, pages=[], **kwargs)
-
-    doc.build(story, canvasmaker=canvas)
-    return buf.getvalue()
+    return build_landscape_pdf(story, paper, "Clinic summary: airway plans", footer)
