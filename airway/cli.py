@@ -719,6 +719,39 @@ def board(
 
 
 @command(cls=GroupedCommand)
+def verify(
+    saved: Annotated[Path, typer.Argument(metavar="PLAN", help="A saved plan: .json or .pdf.")],
+    assessment_file: Annotated[
+        str, typer.Argument(metavar="ASSESSMENT", help="The assessment it claims to come from.")
+    ],
+    catalogue: CatalogueOpt = None,
+    checklists: ChecklistsOpt = None,
+    config: ConfigOpt = None,
+) -> None:
+    """Check a saved or printed plan against its assessment.
+
+    Says whether it came from that assessment and the current rules.
+
+    Exit 0 when it matches, 1 when it does not (as diff does), 2 for bad input.
+    """
+    from .errors import InputError, Problem
+    from .loading import read_assessment
+    from .verify import verify as check
+
+    with _errors():
+        current = _plan_for(read_assessment(assessment_file), catalogue, checklists, config)
+        try:
+            data = saved.read_bytes()
+        except OSError as exc:
+            raise InputError(str(saved), [Problem("(file)", exc.strerror or str(exc))]) from None
+        verdict = check(data, current)
+    for line in verdict.findings:
+        typer.echo(f"{saved}: {line}")
+    if not verdict.matches:
+        raise typer.Exit(1)
+
+
+@command(cls=GroupedCommand)
 def factors(fmt: DataFormatOpt = DataFormat.text, old_json: JsonAlias = False) -> None:
     """List the risk-factor catalogue with weights and sources."""
     from .factor_table import factor_rows, render_factor_table

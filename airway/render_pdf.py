@@ -655,6 +655,12 @@ def build_landscape_pdf(story: list[object], paper: str, title: str, footer: str
     return buf.getvalue()
 
 
+def traceability_subject(plan: Plan) -> str:
+    """The PDF's Subject: tool version, rules version and the input's full digest."""
+    g = plan.generated_by
+    return f"airway {g.version}; rules {g.rules_version}; input sha256 {plan.input_sha256}"
+
+
 class PdfLayoutError(AirwayError):
     """The plan could not be laid out on paper (for example, a unit checklist item
     too long for a column)."""
@@ -773,6 +779,8 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
             title="Obstetric airway plan",
             author="airway",
             creator=f"airway {plan.generated_by.version}",
+            # Read back by `airway verify`: which rules and which assessment made it.
+            subject=traceability_subject(plan),
             invariant=1,
             initialFontName=FONT,
             lang="en-GB",

@@ -247,6 +247,7 @@ COMMANDS = (
     "assess",
     "compare",
     "board",
+    "verify",
     "factors",
     "schema",
 )

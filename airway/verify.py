@@ -1,0 +1,66 @@
+"""Does a saved or printed plan still match its assessment and the current rules?
+
+A JSON plan and a PDF plan both carry the tool version, the rules version and
+the SHA-256 of the assessment they came from (the PDF in its document
+Subject). :func:`verify` recomputes the plan from the assessment and says
+whether the saved one was made from that assessment, under the current rules,
+and (for JSON) whether every value still agrees. Pure: bytes and plan in.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+from dataclasses import dataclass
+
+from .plan import RULES_VERSION
+from .plan_model import Plan
+
+_SUBJECT = re.compile(
+    rb"airway (?P<version>[^;)]+); rules (?P<rules>[^;)]+); input sha256 (?P<sha>[0-9a-f]{64})"
+)
+
+
+@dataclass(frozen=True)
+class Verdict:
+    matches: bool
+    findings: tuple[str, ...]
+
+
+def saved_identity(data: bytes) -> tuple[str, str, str] | None:
+    """(tool version, rules version, input digest) of a saved plan, or None."""
+    if data.startswith(b"%PDF"):
+        m = _SUBJECT.search(data)
+        if m is None:
+            return None
+        return m["version"].decode(), m["rules"].decode(), m["sha"].decode()
+    try:
+        saved = json.loads(data.decode("utf-8"))
+        g = saved["generated_by"]
+        return str(g["version"]), str(g["rules_version"]), str(saved["input_sha256"])
+    except (ValueError, KeyError, TypeError):
+        return None
+
+
+def verify(data: bytes, current: Plan) -> Verdict:
+    """Compare a saved plan (JSON or PDF bytes) with the plan its assessment gives now."""
+    found = saved_identity(data)
+    if found is None:
+        return Verdict(False, ("not a plan made by airway (no version, rules or digest in it)",))
+    _version, rules, sha = found
+    findings = []
+    if sha != current.input_sha256:
+        findings.append(
+            "made from a different assessment (input digest "
+            f"{sha[:12]} in the plan, {current.input_sha256[:12]} for this assessment)"
+        )
+    if rules != RULES_VERSION:
+        findings.append(f"made under rules {rules}; the current rules are {RULES_VERSION}: replan")
+    if not findings and not data.startswith(b"%PDF"):
+        from .render_json import render_json
+
+        if json.loads(data) != json.loads(render_json(current)):
+            findings.append("values differ from the plan recomputed now (edited after saving?)")
+    if findings:
+        return Verdict(False, tuple(findings))
+    return Verdict(True, (f"matches: this assessment, rules {RULES_VERSION}",))

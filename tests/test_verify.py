@@ -1,0 +1,61 @@
+"""Traceability: a saved or printed plan is checked against its assessment and the rules."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from airway.cli import app
+
+from .conftest import EXAMPLES
+
+
+@pytest.fixture
+def saved(runner, tmp_path: Path) -> dict[str, Path]:
+    source = EXAMPLES[0]
+    out = {"json": tmp_path / "p.json", "pdf": tmp_path / "p.pdf"}
+    assert (
+        runner.invoke(app, ["plan", str(source), "-f", "json", "-o", str(out["json"])]).exit_code
+        == 0
+    )
+    assert runner.invoke(app, ["plan", str(source), "--pdf", str(out["pdf"])]).exit_code == 0
+    return out
+
+
+@pytest.mark.parametrize("kind", ["json", "pdf"])
+def test_a_fresh_plan_matches(runner, saved, kind: str) -> None:
+    r = runner.invoke(app, ["verify", str(saved[kind]), str(EXAMPLES[0])])
+    assert r.exit_code == 0 and "matches" in r.stdout
+
+
+@pytest.mark.parametrize("kind", ["json", "pdf"])
+def test_a_plan_from_another_assessment_is_caught(runner, saved, kind: str) -> None:
+    r = runner.invoke(app, ["verify", str(saved[kind]), str(EXAMPLES[1])])
+    assert r.exit_code == 1 and "different assessment" in r.stdout
+
+
+def test_a_plan_made_under_older_rules_is_caught(runner, saved) -> None:
+    data = json.loads(saved["json"].read_text())
+    data["generated_by"]["rules_version"] = "2025.1.1"
+    saved["json"].write_text(json.dumps(data))
+    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    assert r.exit_code == 1 and "rules 2025.1.1" in r.stdout and "replan" in r.stdout
+
+
+def test_an_edited_value_is_caught(runner, saved) -> None:
+    data = json.loads(saved["json"].read_text())
+    data["equipment"]["tracheal_tube_mm"]["first"] = 8.0
+    saved["json"].write_text(json.dumps(data))
+    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    assert r.exit_code == 1 and "values differ" in r.stdout
+
+
+def test_not_a_plan_and_missing_file(runner, tmp_path: Path) -> None:
+    other = tmp_path / "x.json"
+    other.write_text("{}")
+    r = runner.invoke(app, ["verify", str(other), str(EXAMPLES[0])])
+    assert r.exit_code == 1 and "not a plan made by airway" in r.stdout
+    r = runner.invoke(app, ["verify", str(tmp_path / "none.pdf"), str(EXAMPLES[0])])
+    assert r.exit_code == 2 and "none.pdf" in r.stderr
