@@ -20,7 +20,8 @@ from pathlib import Path
 from .checklists import Checklist
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
 from .equipment import Catalogue
-from .errors import InputError, OutputExistsError, Problem
+from .errors import OutputExistsError
+from .loading import read_text_file
 from .output import write_atomic
 from .plan import assessment_digest, build_plan
 from .plan_model import Plan
@@ -45,13 +46,7 @@ class BatchResult:
 
 def read_list_file(path: Path) -> tuple[Row, ...]:
     """The rows of a clinic list file (UTF-8, with or without a byte-order mark)."""
-    try:
-        text = path.read_bytes().decode("utf-8")
-    except OSError as exc:
-        raise InputError(str(path), [Problem("(file)", exc.strerror or str(exc))]) from None
-    except UnicodeDecodeError:
-        raise InputError(str(path), [Problem("(file)", "is not UTF-8 text")]) from None
-    return read_clinic_list(text, str(path))
+    return read_clinic_list(read_text_file(path), str(path))
 
 
 def _outputs(row: Row, pdf: bool) -> list[str]:

@@ -15,8 +15,8 @@ from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_valida
 
 from .assessment import Assessment
 from .body import BodySize
-from .errors import CatalogueError, Problem
-from .loading import problems_from_validation
+from .errors import CatalogueError
+from .loading import problems_from_validation, read_toml_file
 from .sources import Evidence
 
 # Desired first / backup / smallest tube (ID, mm). Project rule built on the
@@ -109,16 +109,10 @@ def load_catalogue(path: Path | None = None) -> Catalogue:
     if path is None:
         text = resources.files("airway").joinpath("data/equipment.toml").read_text("utf-8")
         name = "shipped equipment catalogue"
+        data = tomllib.loads(text)
     else:
         name = str(path)
-        try:
-            text = path.read_text(encoding="utf-8")
-        except OSError as exc:
-            raise CatalogueError(name, [Problem("(file)", exc.strerror or str(exc))]) from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise CatalogueError(name, [Problem("(syntax)", str(exc))]) from None
+        data = read_toml_file(path, CatalogueError)
     try:
         return Catalogue.model_validate(data)
     except ValidationError as exc:

@@ -146,6 +146,29 @@ def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessme
     return assessment_from_mapping(data, source)
 
 
+def read_text_file(path: Path, error: type[InputError] = InputError) -> str:
+    """A UTF-8 text file (a leading byte-order mark dropped); ``error`` names it if not."""
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise error(str(path), [Problem("(file)", exc.strerror or str(exc))]) from None
+    try:
+        return raw.decode("utf-8").removeprefix("\ufeff")
+    except UnicodeDecodeError:
+        raise error(str(path), [Problem("(file)", "is not UTF-8 text")]) from None
+
+
+def read_toml_file(path: Path, error: type[InputError] = InputError) -> dict[str, Any]:
+    """A TOML file as a table; every way it can fail is ``error`` naming the file."""
+    text = read_text_file(path, error)
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise error(str(path), [Problem("(syntax)", f"not valid TOML: {exc}")]) from None
+    except RecursionError:
+        raise error(str(path), [Problem("(structure)", "is nested far too deeply")]) from None
+
+
 def read_assessment(path: str | Path) -> Assessment:
     """Read an assessment from a ``.toml`` or ``.json`` file, or ``-`` for stdin."""
     name = str(path)

@@ -11,9 +11,29 @@ from __future__ import annotations
 
 import os
 import tempfile
+import time
 from pathlib import Path
 
 from .errors import OutputExistsError
+
+# A temporary left by a killed run is removed by the next write of the same file once
+# it is this old; a younger one may belong to a process still writing (project rule).
+STALE_TEMPORARY_S = 60.0
+
+
+def temporary_pattern(name: str) -> str:
+    """The glob of the temporaries :func:`write_atomic` makes for a file called ``name``."""
+    return f".{name}.*.tmp"
+
+
+def remove_stale_temporaries(dest: Path, older_than_s: float = STALE_TEMPORARY_S) -> None:
+    now = time.time()
+    for stale in dest.parent.glob(temporary_pattern(dest.name)):
+        try:
+            if now - stale.stat().st_mtime > older_than_s:
+                stale.unlink()
+        except OSError:
+            pass  # gone already, or not ours to remove
 
 
 def write_atomic(path: str | Path, data: bytes, force: bool = False) -> Path:
@@ -26,6 +46,7 @@ def write_atomic(path: str | Path, data: bytes, force: bool = False) -> Path:
     dest = Path(path)
     if dest.exists() and not force:
         raise OutputExistsError(str(dest))
+    remove_stale_temporaries(dest)
     fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=dest.parent or ".")
     try:
         with os.fdopen(fd, "wb") as handle:
@@ -46,8 +67,11 @@ def write_atomic(path: str | Path, data: bytes, force: bool = False) -> Path:
                 os.replace(tmp, dest)
             else:
                 os.unlink(tmp)
-    except BaseException:
+    except BaseException as exc:
         if os.path.exists(tmp):
             os.unlink(tmp)
+        if isinstance(exc, OSError) and not exc.filename:
+            # Name the file the user asked for (a full disk says only "No space left").
+            raise OSError(exc.errno, exc.strerror or str(exc), str(dest)) from exc
         raise
     return dest

@@ -19,8 +19,8 @@ from pathlib import Path
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
-from .errors import CatalogueError, Problem
-from .loading import problems_from_validation
+from .errors import CatalogueError
+from .loading import problems_from_validation, read_toml_file
 
 DEFAULT_CONFIG = Path("airway.toml")
 
@@ -44,12 +44,8 @@ class Contacts(BaseModel):
 
 
 def _read_toml(path: Path, what: str) -> dict[str, object]:
-    try:
-        return tomllib.loads(path.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise CatalogueError(str(path), [Problem("(file)", exc.strerror or str(exc))]) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise CatalogueError(str(path), [Problem("(syntax)", f"{what}: {exc}")]) from None
+    del what  # the file's name says which file it is
+    return read_toml_file(path, CatalogueError)
 
 
 def load_unit_paths(config: Path | None) -> UnitPaths:

@@ -1,0 +1,121 @@
+"""Faults survived: a kill mid-write, a full disk, missing unit files, two writers at once."""
+
+from __future__ import annotations
+
+import errno
+import os
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+
+from airway import output
+from airway.cli import app
+from airway.output import write_atomic
+
+
+def test_killed_while_writing_leaves_the_old_file_and_no_stray_temporary(tmp_path: Path) -> None:
+    """A real SIGKILL while the new bytes are being flushed: the old file stays whole;
+    the next write of the same file removes the stale temporary."""
+    dest = tmp_path / "plan.json"
+    dest.write_text("the old, complete plan")
+    code = (
+        "import os, sys, time\n"
+        "from airway import output\n"
+        "real = os.fsync\n"
+        "def slow(fd):\n"
+        "    print('writing', flush=True); time.sleep(30); real(fd)\n"
+        "output.os.fsync = slow\n"
+        f"output.write_atomic({str(dest)!r}, b'x' * 100000, force=True)\n"
+    )
+    proc = subprocess.Popen([sys.executable, "-c", code], stdout=subprocess.PIPE)
+    assert proc.stdout is not None and proc.stdout.readline().strip() == b"writing"
+    os.kill(proc.pid, signal.SIGKILL)
+    proc.wait(timeout=20)
+    proc.stdout.close()
+    assert dest.read_text() == "the old, complete plan"
+    (stale,) = tmp_path.glob(".plan.json.*.tmp")
+    old = time.time() - 2 * output.STALE_TEMPORARY_S
+    os.utime(stale, (old, old))
+    write_atomic(dest, b"the new plan", force=True)
+    assert dest.read_bytes() == b"the new plan"
+    assert not list(tmp_path.glob(".*.tmp"))
+
+
+def test_interrupted_write_cleans_up_after_itself(tmp_path: Path, monkeypatch) -> None:
+    dest = tmp_path / "plan.pdf"
+    dest.write_bytes(b"old")
+
+    def interrupted(_fd: int) -> None:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(output.os, "fsync", interrupted)
+    with pytest.raises(KeyboardInterrupt):
+        write_atomic(dest, b"new", force=True)
+    assert dest.read_bytes() == b"old" and [p.name for p in tmp_path.iterdir()] == ["plan.pdf"]
+
+
+class _FullDisk:
+    """A file object on a disk with no space left."""
+
+    def __init__(self, fd: int, _mode: str) -> None:
+        self.fd = fd
+
+    def __enter__(self) -> _FullDisk:
+        return self
+
+    def __exit__(self, *_exc: object) -> None:
+        os.close(self.fd)
+
+    def write(self, _data: bytes) -> int:
+        raise OSError(errno.ENOSPC, "No space left on device")
+
+    def flush(self) -> None:
+        pass
+
+    def fileno(self) -> int:
+        return self.fd
+
+
+@pytest.mark.parametrize("args", [["-f", "json", "-o"], ["--pdf"]])
+def test_full_disk_exit_1_clear_message_old_file_intact(runner, tmp_path, monkeypatch, args):
+    dest = tmp_path / "out"
+    dest.write_text("yesterday's plan")
+    monkeypatch.setattr(output.os, "fdopen", _FullDisk)
+    r = runner.invoke(app, ["plan", "--demo", *args, str(dest), "--force"])
+    assert r.exit_code == 1
+    assert f"airway: {dest}: No space left on device" in r.stderr and "Traceback" not in r.output
+    assert dest.read_text() == "yesterday's plan"
+    assert [p.name for p in tmp_path.iterdir()] == ["out"]
+
+
+@pytest.mark.parametrize(
+    ("option", "name"),
+    [("--catalogue", "cat.toml"), ("--config", "unit.toml"), ("--checklists", "lists")],
+)
+def test_missing_unit_file_exit_2_naming_it(runner, tmp_path: Path, option: str, name: str):
+    missing = tmp_path / name
+    r = runner.invoke(app, ["plan", "--demo", option, str(missing)])
+    assert r.exit_code == 2 and str(missing) in r.stderr and "Traceback" not in r.output
+
+
+def test_unreadable_unit_file_exit_2_naming_it(runner, tmp_path: Path) -> None:
+    bad = tmp_path / "cat.toml"
+    bad.write_bytes(b"\xff\xfe\x00 not text")
+    r = runner.invoke(app, ["plan", "--demo", "--catalogue", str(bad)])
+    assert r.exit_code == 2 and str(bad) in r.stderr
+
+
+def test_two_writers_with_force_leave_one_complete_file(tmp_path: Path) -> None:
+    dest = tmp_path / "plan.pdf"
+    cmd = [sys.executable, "-m", "airway", "plan", "--demo", "--pdf", str(dest), "--force"]
+    procs = [
+        subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL) for _ in "ab"
+    ]
+    assert [p.wait(timeout=60) for p in procs] == [0, 0]
+    data = dest.read_bytes()
+    assert data.startswith(b"%PDF") and data.rstrip().endswith(b"%%EOF")
+    assert [p.name for p in tmp_path.iterdir()] == ["plan.pdf"]
