@@ -1,5 +1,6 @@
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pytest
@@ -29,3 +30,15 @@ def make(**sections: object) -> Assessment:
     patient = {"weight_kg": 80, "height_cm": 165}
     patient.update(data.pop("patient", {}))
     return assessment_from_mapping({"patient": patient, **data})
+
+
+# Fuzzing: a fixed, fast profile in CI; `HYPOTHESIS_PROFILE=deep` for a long run on demand.
+from hypothesis import HealthCheck, settings  # noqa: E402
+
+settings.register_profile(
+    "ci", derandomize=True, deadline=None, suppress_health_check=[HealthCheck.too_slow]
+)
+settings.register_profile(
+    "deep", max_examples=20_000, deadline=None, suppress_health_check=[HealthCheck.too_slow]
+)
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "ci"))

@@ -1,0 +1,145 @@
+"""Hostile input of every shape: only the tool's own input error, only exit 0 or 2."""
+
+from __future__ import annotations
+
+import json
+import os
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from typer.testing import CliRunner
+
+from airway.cli import app
+from airway.clinic import read_clinic_list
+from airway.errors import InputError
+from airway.fields import field_specs
+from airway.loading import parse_assessment
+from airway.plan import build_plan
+
+PATHS = [f.path for f in field_specs()]
+# CI runs a few thousand cases in all; HYPOTHESIS_PROFILE=deep runs 30 times as many.
+SCALE = 30 if os.environ.get("HYPOTHESIS_PROFILE") == "deep" else 1
+SECTIONS = sorted({p.split(".")[0] for p in PATHS if "." in p})
+
+scalars = st.one_of(
+    st.none(),
+    st.booleans(),
+    st.integers(min_value=-(10**20), max_value=10**20),
+    st.floats(allow_nan=True, allow_infinity=True),
+    st.text(max_size=30),
+)
+json_values = st.recursive(
+    scalars,
+    lambda inner: (
+        st.lists(inner, max_size=4) | st.dictionaries(st.text(max_size=12), inner, max_size=4)
+    ),
+    max_leaves=12,
+)
+# Near-valid assessments: real sections and field names, values of any type.
+field_values = st.dictionaries(st.sampled_from(PATHS), json_values, max_size=8)
+
+
+def _nested(flat: dict[str, object]) -> dict[str, object]:
+    out: dict[str, dict[str, object] | object] = {}
+    for path, value in flat.items():
+        if "." in path:
+            section, name = path.split(".", 1)
+            target = out.setdefault(section, {})
+            if isinstance(target, dict):
+                target[name] = value
+        else:
+            out[path] = value
+    return out
+
+
+def _plan_or_input_error(text: str, fmt: str | None) -> None:
+    try:
+        assessment = parse_assessment(text, "fuzz", fmt)
+    except InputError:
+        return
+    build_plan(assessment)  # a valid assessment must always give a plan
+
+
+@settings(max_examples=600 * SCALE)
+@given(field_values)
+def test_near_valid_json_assessments(flat: dict[str, object]) -> None:
+    _plan_or_input_error(json.dumps(_nested(flat)), "json")
+
+
+@settings(max_examples=400 * SCALE)
+@given(json_values)
+def test_any_json_document(value: object) -> None:
+    _plan_or_input_error(json.dumps(value), "json")
+
+
+@settings(max_examples=600 * SCALE)
+@given(st.text(max_size=300))
+def test_any_text_as_toml_or_json(text: str) -> None:
+    _plan_or_input_error(text, None)
+
+
+toml_lines = st.lists(
+    st.tuples(
+        st.sampled_from(PATHS),
+        st.one_of(
+            st.integers(-1000, 1000).map(str),
+            st.floats(-1e6, 1e6, allow_nan=False).map(repr),
+            st.sampled_from(["true", "false", '"x"', "[]", '["stridor"]', "nan", "inf", "{}"]),
+            st.text(max_size=10).map(json.dumps),
+        ),
+    ),
+    max_size=10,
+)
+
+
+@settings(max_examples=600 * SCALE)
+@given(toml_lines)
+def test_near_valid_toml_assessments(lines: list[tuple[str, str]]) -> None:
+    sections: dict[str, list[str]] = {}
+    top: list[str] = []
+    for path, value in lines:
+        if "." in path:
+            section, name = path.split(".", 1)
+            sections.setdefault(section, []).append(f"{name} = {value}")
+        else:
+            top.append(f"{path} = {value}")
+    text = (
+        "\n".join(top)
+        + "\n"
+        + "".join(f"[{s}]\n" + "\n".join(body) + "\n" for s, body in sections.items())
+    )
+    _plan_or_input_error(text, "toml")
+
+
+@settings(max_examples=300 * SCALE)
+@given(
+    st.lists(st.sampled_from(PATHS), min_size=1, max_size=6, unique=True),
+    st.lists(st.lists(st.text(max_size=12), min_size=0, max_size=8), max_size=5),
+)
+def test_clinic_list_cells(columns: list[str], cells: list[list[str]]) -> None:
+    import csv
+    import io
+
+    buf = io.StringIO()
+    writer = csv.writer(buf)
+    writer.writerow(["id", *columns])
+    for i, row in enumerate(cells):
+        writer.writerow([f"R{i}", *row])
+    try:
+        rows = read_clinic_list(buf.getvalue(), "fuzz.csv")
+    except InputError:
+        return
+    for row in rows:
+        if row.assessment is not None:
+            build_plan(row.assessment)
+        else:
+            assert row.problems
+
+
+@settings(max_examples=150 * SCALE)
+@given(field_values)
+def test_command_line_exit_0_or_2_never_a_traceback(flat: dict[str, object]) -> None:
+    text = json.dumps(_nested(flat))
+    r = CliRunner().invoke(app, ["plan", "-", "-f", "json"], input=text)
+    assert r.exit_code in (0, 2), (text, r.output, r.exception)
+    assert "Traceback" not in r.output
