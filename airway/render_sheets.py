@@ -30,6 +30,7 @@ from reportlab.platypus import (
 )
 
 from . import __version__
+from .plan import RULES_VERSION
 from .render_pdf import FONT, FONT_BOLD, _register_fonts
 from .sheets import BAND_HEIGHTS_CM, Sheet
 
@@ -246,11 +247,16 @@ def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) 
         )
         for i in range(columns)
     ]
+    # The rules version dates the sheet: a laminated copy older than the catalogue and
+    # rules in use is replaced (`airway verify` does the same for a patient plan).
     footer = (
-        f"airway {__version__} · generic sheet, not for one patient · a decision aid: "
-        "local guidelines and clinical judgement come first"
+        "Generic sheet, not for one patient · a decision aid: local guidelines and clinical "
+        "judgement come first"
     )
-    footer2 = "Reassess the airway immediately before every induction."
+    footer2 = (
+        "Reassess the airway immediately before every induction. "
+        f"airway {__version__}, rules {RULES_VERSION}"
+    )
 
     def on_page(canvas: Any, doc_: Any) -> None:
         canvas.setFont(FONT, 8 * k)
