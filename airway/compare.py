@@ -122,27 +122,24 @@ def _factors(earlier: Plan, later: Plan) -> list[Change]:
         e = before.get(f.id)
         if e is None or f.role == "override":
             continue
-        label = f.label if f.present else e.label if e.present else f.label
-        groups.setdefault(finding_name(f.id), []).append((e.contribution, f.contribution, label))
-    for name, members in groups.items():
+        groups.setdefault(finding_name(f.id), []).append((e.contribution, f.contribution, f.label))
+    for members in groups.values():
         old = sum(m[0] for m in members)
         new = sum(m[1] for m in members)
         delta = round(new - old, 2)
-        if delta:
-            present = [m[2] for m in members if m[1] > 0] or [m[2] for m in members if m[0] > 0]
-            out.append(
-                Change(
-                    kind="factor",
-                    what=present[0]
-                    if len(members) == 1
-                    else f"{name} ({present[0]} now)"
-                    if any(m[1] > 0 for m in members)
-                    else f"{name} (was {present[0]})",
-                    before=f"+{old:.2f}",
-                    after=f"+{new:.2f}",
-                    danger=delta,
-                )
+        if not delta:
+            continue
+        was = [m[2] for m in members if m[0] > 0]
+        now = [m[2] for m in members if m[1] > 0]
+        if len(members) == 1 or was == now:
+            what = members[0][2] if len(members) == 1 else now[0]
+        else:  # "Mallampati class 3 (was Mallampati class 2)"
+            what = f"{now[0] if now else 'none'} (was {was[0] if was else 'none'})"
+        out.append(
+            Change(
+                kind="factor", what=what, before=f"+{old:.2f}", after=f"+{new:.2f}", danger=delta
             )
+        )
     return out
 
 
