@@ -16,6 +16,7 @@ from pathlib import Path
 from pydantic import ValidationError
 
 from .decision import SHORT, by_category_text
+from .oxygenation import minutes_label
 from .plan import RULES_VERSION
 from .plan_model import Plan
 
@@ -59,13 +60,12 @@ def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow
     if plan.generated_by.rules_version != RULES_VERSION:
         warnings.append(f"rules {plan.generated_by.rules_version}, now {RULES_VERSION}: replan")
     oxy = plan.oxygenation
-    minutes = oxy.minutes_to_spo2_90
     return BoardRow(
         name=name,
         level=plan.risk.level,
         first_tube_mm=plan.equipment.tracheal_tube_mm.first,
         supraglottic_size=plan.equipment.supraglottic_size,
-        minutes_to_spo2_90=f"> {oxy.horizon_minutes:g}" if minutes is None else f"{minutes:g}",
+        minutes_to_spo2_90=minutes_label(oxy.minutes_to_spo2_90, oxy.horizon_minutes),
         decision=(
             by_category_text(plan.decision.if_category)
             if plan.decision.if_category

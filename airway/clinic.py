@@ -20,6 +20,7 @@ from .assessment import Assessment
 from .errors import InputError, Problem
 from .fields import BY_PATH, nest, parse_text
 from .loading import problems_from_validation
+from .oxygenation import minutes_label
 from .plan_model import Plan
 from .sources import Evidence
 
@@ -197,10 +198,8 @@ def summary_row(row: Row, plan: Plan | None) -> SummaryRow:
         drivers=drivers(plan),
         first_tube_mm=plan.equipment.tracheal_tube_mm.first,
         supraglottic_size=plan.equipment.supraglottic_size,
-        minutes_to_spo2_90=(
-            f"> {plan.oxygenation.horizon_minutes:g}"
-            if plan.oxygenation.minutes_to_spo2_90 is None
-            else f"{plan.oxygenation.minutes_to_spo2_90:g}"
+        minutes_to_spo2_90=minutes_label(
+            plan.oxygenation.minutes_to_spo2_90, plan.oxygenation.horizon_minutes
         ),
         decision=plan.decision.phrase,
         flags=flags_for(plan),

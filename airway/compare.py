@@ -15,6 +15,7 @@ from typing import Any
 
 from .doses import dose_text
 from .fields import field_specs
+from .oxygenation import minutes_label
 from .plan_model import Change, Comparison, Plan
 from .scoring import finding_name, level_heading
 
@@ -169,27 +170,6 @@ def _plan_values(earlier: Plan, later: Plan) -> list[Change]:
                 danger=t0.first - t1.first,
             )
         )
-    s0, s1 = earlier.equipment.supraglottic_size, later.equipment.supraglottic_size
-    if s0 != s1:
-        out.append(
-            Change(
-                kind="equipment",
-                what="supraglottic size",
-                before=f"{s0:g}",
-                after=f"{s1:g}",
-                danger=0.0,
-            )
-        )
-    if earlier.equipment.first_laryngoscope != later.equipment.first_laryngoscope:
-        out.append(
-            Change(
-                kind="equipment",
-                what="first device",
-                before=earlier.equipment.first_laryngoscope,
-                after=later.equipment.first_laryngoscope,
-                danger=0.0,
-            )
-        )
     m0, m1 = earlier.oxygenation.minutes_to_spo2_90, later.oxygenation.minutes_to_spo2_90
     horizon = later.oxygenation.horizon_minutes
     if m0 != m1:
@@ -199,27 +179,32 @@ def _plan_values(earlier: Plan, later: Plan) -> list[Change]:
             Change(
                 kind="oxygenation",
                 what="minutes to SpO2 90% (model estimate)",
-                before=f"> {horizon:g}" if m0 is None else f"{m0:g}",
-                after=f"> {horizon:g}" if m1 is None else f"{m1:g}",
+                before=minutes_label(m0, horizon),
+                after=minutes_label(m1, horizon),
                 danger=round(MINUTES_WEIGHT * (a - b), 2),
             )
         )
-    before = {d.drug: d for d in earlier.doses}
-    for d in later.doses:
-        e = before[d.drug]
-        x, y = (dose_text(e).split(" (")[0], dose_text(d).split(" (")[0])
-        if x != y:
-            out.append(Change(kind="dose", what=d.label, before=x, after=y, danger=0.0))
-    if earlier.decision.recommendation != later.decision.recommendation:
-        out.append(
-            Change(
-                kind="decision",
-                what="pre-made decision",
-                before=earlier.decision.phrase,
-                after=later.decision.phrase,
-                danger=0.0,
-            )
-        )
+    # Changes that neither add nor take away danger on their own: shown, not ranked.
+    e0, e1 = earlier.equipment, later.equipment
+    neutral = [
+        (
+            "equipment",
+            "supraglottic size",
+            f"{e0.supraglottic_size:g}",
+            f"{e1.supraglottic_size:g}",
+        ),
+        ("equipment", "first device", e0.first_laryngoscope, e1.first_laryngoscope),
+        *(
+            ("dose", d.label, dose_text(e).split(" (")[0], dose_text(d).split(" (")[0])
+            for e, d in zip(earlier.doses, later.doses, strict=True)
+        ),
+        ("decision", "pre-made decision", earlier.decision.phrase, later.decision.phrase),
+    ]
+    out += [
+        Change(kind=kind, what=what, before=x, after=y, danger=0.0)
+        for kind, what, x, y in neutral
+        if x != y
+    ]
     return out
 
 

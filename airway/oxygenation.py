@@ -152,6 +152,11 @@ class Physiology:
     pharyngeal_fo2: float = FO2_ROOM_AIR
 
 
+def minutes_label(minutes: float | None, horizon: float) -> str:
+    """'3.7', or '> 20' when the model did not reach the threshold within its horizon."""
+    return f"> {horizon:g}" if minutes is None else f"{minutes:g}"
+
+
 def saturation(po2_mmhg: float, p50_mmhg: float = SEVERINGHAUS_P50_MMHG) -> float:
     """Severinghaus 1979 saturation (0-1); P50 shifted by scaling the PO2."""
     p = max(po2_mmhg, 0.0) * SEVERINGHAUS_P50_MMHG / p50_mmhg

@@ -755,16 +755,20 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
     def canvas(*args: object, **kwargs: object) -> _NumberedCanvas:
         return _NumberedCanvas(*args, footer=footer, pages=pages, **kwargs)
 
-    # The head of page 1 is the same in either layout: make and measure it once.
     width = size[0] - (MARGINS_MM["left"] + MARGINS_MM["right"]) * mm
     usable = size[1] - (MARGINS_MM["top"] + MARGINS_MM["bottom"]) * mm
-    top = [
-        *_header(plan, width, st),
-        _key_block(plan, width, st),
-        *_since_box(plan, width, st),
-        *_basis(plan, width, st),
-    ]
-    head = (top, min(usable, _height(top, width) + 2))
+
+    def make_head() -> tuple[list[object], float]:
+        """The head of page 1, the same in either layout, and its measured height."""
+        top = [
+            *_header(plan, width, st),
+            _key_block(plan, width, st),
+            *_since_box(plan, width, st),
+            *_basis(plan, width, st),
+        ]
+        return top, min(usable, _height(top, width) + 2)
+
+    head = make_head()  # measured once; shared by a measured-too-long first try
 
     def build(dense: bool) -> bytes:
         buf = io.BytesIO()
@@ -794,5 +798,7 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
     pdf = build(dense=False)
     if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL and pages[-1] > 1:
         # Levels 1 and 2 belong on one page: drop the curve (its numbers are in the table).
+        # The first build has drawn the head's flowables; lay out fresh ones.
+        head = make_head()
         pdf = build(dense=True)
     return pdf

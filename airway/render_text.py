@@ -13,7 +13,7 @@ import textwrap
 from .body import BODY_FORMULA_WARNING
 from .decision import DECISION_TITLE, by_category_text
 from .doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text
-from .oxygenation import Oxygenation
+from .oxygenation import Oxygenation, minutes_label
 from .plan_model import Plan
 from .scoring import FactorResult, level_heading, thresholds_text
 from .sources import source_label
@@ -138,7 +138,7 @@ def _body(plan: Plan) -> list[str]:
 
 def minutes_text(minutes: float | None, horizon: float) -> str:
     """'4.9 min' or '> 20 min' when the model did not reach the threshold."""
-    return f"> {horizon:g} min" if minutes is None else f"{minutes:g} min"
+    return f"{minutes_label(minutes, horizon)} min"
 
 
 def oxygenation_lines(oxy: Oxygenation) -> list[str]:
