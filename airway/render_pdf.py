@@ -22,7 +22,6 @@ import io
 import os
 from collections.abc import Sequence
 from pathlib import Path
-from xml.sax.saxutils import escape
 
 from reportlab.graphics.shapes import Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
@@ -51,6 +50,7 @@ from . import __version__
 from .decision import DECISION_TITLE, SHORT, by_category_text
 from .doses import SCALAR_LABEL, Dose
 from .errors import AirwayError
+from .markup import escape
 from .plan_model import Plan, RenderedChecklist
 from .render_text import minutes_text, weight_text
 from .scoring import level_heading

@@ -11,7 +11,6 @@ from __future__ import annotations
 import io
 from collections.abc import Sequence
 from typing import Any
-from xml.sax.saxutils import escape
 
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A3, A4, landscape, portrait
@@ -30,6 +29,7 @@ from reportlab.platypus import (
 )
 
 from . import __version__
+from .markup import escape
 from .plan import RULES_VERSION
 from .render_pdf import FONT, FONT_BOLD, _register_fonts
 from .sheets import BAND_HEIGHTS_CM, Sheet

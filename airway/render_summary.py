@@ -7,12 +7,11 @@ footer with the patient plan (:mod:`airway.render_pdf`).
 
 from __future__ import annotations
 
-from xml.sax.saxutils import escape
-
 from reportlab.platypus import Paragraph, Spacer
 
 from . import __version__
 from .clinic import FLAG_RULES, SummaryRow, sort_summary
+from .markup import escape
 from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
 from .render_pdf import (
     FONT_BOLD,
