@@ -287,3 +287,24 @@ def test_quick_help_groups_options_by_examination() -> None:
         "Unit files:",
         "Options:",
     ]
+
+
+@pytest.mark.parametrize("name", [c for c in COMMANDS if c])
+def test_one_command_app_reads_like_the_whole_app(runner, name: str) -> None:
+    """Start-up builds only the command asked for; its help and its errors read the same."""
+    from airway.cli import _app_for
+
+    one = _app_for([name, "--help"])
+    assert one is not app and len(one.registered_commands) == 1
+    for args in ([name, "--help"], [name, "--no-such-option"]):
+        whole = runner.invoke(app, args, env={"COLUMNS": "80"}, terminal_width=80)
+        alone = runner.invoke(one, args, env={"COLUMNS": "80"}, terminal_width=80)
+        assert (alone.exit_code, alone.output) == (whole.exit_code, whole.output)
+    assert len(app.registered_commands) == len(COMMANDS) - 1  # the whole app untouched
+
+
+def test_whole_app_for_anything_but_a_command_name() -> None:
+    from airway.cli import _app_for
+
+    for args in ([], ["--help"], ["--version"], ["quik"], ["-h", "quick"]):
+        assert _app_for(args) is app

@@ -1,0 +1,69 @@
+"""Start-up: options that check values alike share one typer value checker."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+import typer
+from typer.testing import CliRunner
+
+from airway.cli import app
+from airway.cli_startup import adapter_key
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def test_options_differing_only_in_help_share_a_key() -> None:
+    a = typer.Option("--height-cm", help="Height.", rich_help_panel="Patient", metavar="CM")
+    b = typer.Option("--weight-kg", help="Weight.", rich_help_panel="Other", metavar="KG")
+    assert adapter_key(float | None, a) == adapter_key(float | None, b)
+    assert adapter_key(float | None, a) != adapter_key(int | None, a)
+
+
+def test_options_that_check_differently_do_not_share() -> None:
+    plain = typer.Option("--x")
+    assert adapter_key(float, plain) != adapter_key(float, typer.Option("--x", min=1))
+    assert adapter_key(float, plain) != adapter_key(float, typer.Option("--x", clamp=True))
+    assert adapter_key(str, plain) != adapter_key(str, typer.Option("--x", parser=str.upper))
+    assert adapter_key(str, plain) != adapter_key(str, typer.Argument())
+
+
+def test_unhashable_settings_are_never_shared() -> None:
+    odd = typer.Option("--x")
+    odd.formats = ["%Y"]  # a list: cannot be part of a key
+    assert adapter_key(str, odd) is None
+
+
+CASES = (
+    ["quick", "--weight-kg", "90", "--mallampati", "abc"],
+    ["quick", "--weight-kg", "90", "--mallampati", "7"],
+    ["quick", "--weight-kg", "ninety"],
+    ["quick", "--weight-kg", "90", "--neck-movement", "stiff"],
+    ["quick", "--weight-kg", "90", "--signs", "hoarse"],
+    ["quick", "--weight-kg", "90", "--mallampati", "3", "--in-labour", "--signs", "stridor"],
+    ["quick", "--weight-kg", "90", "--height-cm", "1.6"],
+    ["oxygen", "examples/clinic-raised-bmi.toml", "--end-tidal-o2", "0.8", "-f", "json"],
+    ["oxygen", "examples/clinic-raised-bmi.toml", "--end-tidal-o2", "0.3"],
+)
+
+
+@pytest.mark.parametrize("args", CASES, ids=lambda a: " ".join(a[2:]))
+def test_shared_checkers_answer_as_typer_does(args: list[str]) -> None:
+    """The console command (checkers shared) and the bare app give the same output and code."""
+    bare = CliRunner().invoke(
+        app, args, env={"COLUMNS": "80"}, terminal_width=80, prog_name="airway"
+    )
+    shared = subprocess.run(
+        [sys.executable, "-m", "airway", *args],
+        capture_output=True,
+        text=True,
+        env={"COLUMNS": "80", "PATH": "/usr/bin:/bin", "PYTHONDONTWRITEBYTECODE": "1"},
+        check=False,
+        cwd=ROOT,
+    )
+    assert shared.returncode == bare.exit_code
+    assert shared.stdout == bare.stdout
+    assert shared.stderr == bare.stderr
