@@ -13,7 +13,14 @@ import unicodedata
 from datetime import date
 from typing import Annotated, Literal
 
-from pydantic import AfterValidator, BaseModel, ConfigDict, Field, field_validator
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    ConfigDict,
+    Field,
+    StringConstraints,
+    field_validator,
+)
 from pydantic_core import PydanticCustomError
 
 OedemaSign = Literal[
@@ -47,7 +54,9 @@ def _printable(value: str) -> str:
     return value
 
 
-PrintableText = Annotated[str, AfterValidator(_printable)]
+def _printable_text(max_chars: int) -> object:
+    """Plain printable text of at most ``max_chars`` characters (length checked first)."""
+    return Annotated[str, StringConstraints(max_length=max_chars), AfterValidator(_printable)]
 
 
 class _Model(BaseModel):
@@ -195,10 +204,10 @@ class Context(_Model):
 class Identity(_Model):
     """Identifiers printed on the plan only when given; blank lines otherwise."""
 
-    name: PrintableText | None = Field(default=None, max_length=80)
-    record_number: PrintableText | None = Field(default=None, max_length=40)
-    date_of_birth: PrintableText | None = Field(
-        default=None, max_length=20, description="As written"
+    name: _printable_text(80) | None = None  # type: ignore[valid-type]
+    record_number: _printable_text(40) | None = None  # type: ignore[valid-type]
+    date_of_birth: _printable_text(20) | None = Field(  # type: ignore[valid-type]
+        default=None, description="As written"
     )
 
 
@@ -215,8 +224,7 @@ class Assessment(_Model):
         default=None,
         description="Date of the examination (YYYY-MM-DD); the ward board flags old plans",
     )
-    label: PrintableText | None = Field(
+    label: _printable_text(120) | None = Field(  # type: ignore[valid-type]
         default=None,
-        max_length=120,
         description="Free-text label shown on the plan (e.g. a clinic reference); optional",
     )

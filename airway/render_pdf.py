@@ -38,12 +38,12 @@ from reportlab.platypus import (
     NextPageTemplate,
     PageBreak,
     PageTemplate,
-    Paragraph,
     SimpleDocTemplate,
     Spacer,
     Table,
     TableStyle,
 )
+from reportlab.platypus import Paragraph as _Paragraph
 from reportlab.platypus.doctemplate import LayoutError
 
 from . import __version__
@@ -137,6 +137,24 @@ def _styles() -> dict[str, ParagraphStyle]:
         ),
         "caution": ParagraphStyle("caution", parent=base, fontName=FONT_BOLD, textColor=WARN),
     }
+
+
+class Paragraph(_Paragraph):
+    """A paragraph that breaks its lines once per width.
+
+    The plan is measured before it is laid out (to size the page head and choose
+    the layout), so every paragraph is wrapped twice at the same width; the line
+    breaks depend only on the width, so the second wrap reuses the first.
+    """
+
+    _wrapped: tuple[float, tuple[float, float]] | None = None
+
+    def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:
+        if self._wrapped is not None and self._wrapped[0] == availWidth:
+            return self._wrapped[1]
+        size = super().wrap(availWidth, availHeight)
+        self._wrapped = (availWidth, size)
+        return size
 
 
 def _p(text: str, style: ParagraphStyle) -> Paragraph:

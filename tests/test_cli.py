@@ -22,6 +22,10 @@ BAD = {
     "malformed_toml": ("[patient\nweight_kg = 80\n", "line 1"),
     "empty": ("", "empty"),
     "no_weight": ("[patient]\nheight_cm = 165\n", "patient.weight_kg: required"),
+    "name_too_long": (
+        f'[identity]\nname = "{"x" * 81}"\n[patient]\nweight_kg = 80\n',
+        "identity.name: String should have at most 80 characters",
+    ),
 }
 
 

@@ -248,3 +248,30 @@ def test_never_more_than_two_pages_on_letter() -> None:
     for assessment in _level_cases():
         plan = build_plan(assessment)
         assert len(PdfReader(io.BytesIO(render_plan_pdf(plan, "letter"))).pages) <= 2
+
+
+def test_line_breaks_reused_only_where_they_change_nothing(monkeypatch) -> None:
+    """Wrapping each paragraph once per width prints the same bytes as wrapping every time.
+
+    Covers both layouts, two pages, US Letter and a long hostile name that splits.
+    """
+    from reportlab.platypus import Paragraph as Plain
+
+    from airway import render_pdf
+
+    crowded = make(
+        identity={"name": "Ann " + "Verylongsurname-" * 4},
+        patient={"weight_kg": 140, "height_cm": 152, "in_labour": True},
+        airway={"mallampati": 4, "large_breasts": True, "short_neck": True},
+        preeclampsia={"status": "with_severe_features", "signs": ["stridor", "voice_change"]},
+        context={"urgency_category": 1},
+    )
+    cases = [(read_assessment(p), "A4") for p in EXAMPLES] + [
+        (crowded, "A4"),
+        (crowded, "letter"),
+        (make(), "letter"),
+    ]
+    cached = [render_plan_pdf(build_plan(a), paper) for a, paper in cases]
+    monkeypatch.setattr(render_pdf.Paragraph, "wrap", Plain.wrap)
+    plain = [render_plan_pdf(build_plan(a), paper) for a, paper in cases]
+    assert cached == plain
