@@ -684,12 +684,18 @@ class PdfLayoutError(AirwayError):
     too long for a column)."""
 
 
-def _height(flowables: list[object], width: float) -> float:
-    """How tall these flowables stand, one under the other, at this width."""
+def _height(flowables: list[object], width: float, stop_above: float = float("inf")) -> float:
+    """How tall these flowables stand, one under the other, at this width.
+
+    Measuring stops once the total passes ``stop_above``: the caller only asks
+    whether they fit, and the rest need not be wrapped.
+    """
     total = 0.0
     for f in flowables:
         _w, h = f.wrap(width, 10_000)  # type: ignore[attr-defined]
         total += h + f.getSpaceBefore() + f.getSpaceAfter()  # type: ignore[attr-defined]
+        if total > stop_above:
+            break
     return total
 
 
@@ -747,7 +753,7 @@ def _layout(
         flowing = [*reference, *brief, *steps, *after, *_closing(plan, st)]
         room = columns * (usable - top_h - 4)
         # A column break wastes part of a line or a table row: keep some slack.
-        fits = _height(flowing, col) <= FIT_SLACK * room
+        fits = _height(flowing, col, stop_above=FIT_SLACK * room) <= FIT_SLACK * room
         return templates, [*story, *flowing], fits
     # Higher levels: page 2 opens with every action of the sequence, full width.
     steps = _steps(plan, width, st, full=True)
