@@ -12,10 +12,12 @@ from __future__ import annotations
 
 import json
 import os
+from collections import deque
 from collections.abc import Callable
-from concurrent.futures import Future, ProcessPoolExecutor
+from concurrent.futures import Future, ProcessPoolExecutor, ThreadPoolExecutor
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 from .checklists import Checklist
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
@@ -81,7 +83,7 @@ def _write_pdf(job: tuple[Plan, str, str]) -> str:
     from .render_pdf import render_plan_pdf
 
     plan, paper, path = job
-    write_atomic(path, render_plan_pdf(plan, paper), force=True)
+    write_atomic(path, render_plan_pdf(plan, paper), force=True, sweep_stale=False)
     return path
 
 
@@ -131,10 +133,21 @@ def run_batch(
             progress(counts["done"], total)
 
     workers = 1 if not pdf else (jobs or os.cpu_count() or 1)
-    # Plans are summarised and let go as they are made, and at most a few PDFs wait
-    # for a worker, so memory stays flat however long the list.
+    # Plans are summarised and let go as they are made, and at most a few files wait
+    # to be written, so memory stays flat however long the list. PDFs are made in
+    # worker processes; JSON files are written (and flushed to disk) on one thread
+    # while the next plan is made.
     pool = ProcessPoolExecutor(max_workers=workers) if workers > 1 else None
-    pending: list[Future[str]] = []
+    writer = ThreadPoolExecutor(max_workers=1, thread_name_prefix="airway-writer")
+    pending: deque[tuple[Future[Any], int]] = deque()
+    limit = 4 * max(workers, 2)
+
+    def wait(all_of_them: bool = False) -> None:
+        while pending and (all_of_them or len(pending) >= limit or pending[0][0].done()):
+            future, files = pending.popleft()
+            future.result()
+            finished(files)
+
     try:
         for row in good:
             assert row.assessment is not None
@@ -144,32 +157,37 @@ def run_batch(
                 counts["kept"] += 1
                 finished(0)
                 continue
-            write_atomic(out / f"{row.id}.json", render_json(plan).encode("utf-8"), force=True)
+            data = render_json(plan).encode("utf-8")
+            target = out / f"{row.id}.json"
+            saved = writer.submit(write_atomic, target, data, True, False)
             if not pdf:
-                finished(1)
+                pending.append((saved, 1))
+                wait()
                 continue
             job = (plan, paper, str(out / f"{row.id}.pdf"))
             if pool is None:
+                saved.result()
                 _write_pdf(job)
                 finished(2)
                 continue
-            pending.append(pool.submit(_write_pdf, job))
-            while len(pending) >= 4 * workers:
-                pending.pop(0).result()
-                finished(2)
-        for future in pending:
-            future.result()
-            finished(2)
+            pending.append((saved, 0))
+            pending.append((pool.submit(_write_pdf, job), 2))
+            wait()
+        wait(all_of_them=True)
     finally:
+        writer.shutdown(wait=True, cancel_futures=True)
         if pool is not None:
             pool.shutdown(cancel_futures=True)
     written, kept = counts["written"], counts["kept"]
     summary = tuple(lines.get(r.number) or summary_row(r, None) for r in rows)
-    write_atomic(out / SUMMARY_CSV, summary_csv(list(summary)).encode("utf-8"), force=True)
+    write_atomic(
+        out / SUMMARY_CSV, summary_csv(list(summary)).encode("utf-8"), force=True, sweep_stale=False
+    )
     written += 1
     if pdf:
         from .render_summary import render_summary_pdf
 
-        write_atomic(out / SUMMARY_PDF, render_summary_pdf(list(summary), paper), force=True)
+        summary_pdf = render_summary_pdf(list(summary), paper)
+        write_atomic(out / SUMMARY_PDF, summary_pdf, force=True, sweep_stale=False)
         written += 1
     return BatchResult(rows=rows, summary=summary, written=written, kept=kept)

@@ -36,8 +36,14 @@ def remove_stale_temporaries(dest: Path, older_than_s: float = STALE_TEMPORARY_S
             pass  # gone already, or not ours to remove
 
 
-def write_atomic(path: str | Path, data: bytes, force: bool = False) -> Path:
+def write_atomic(
+    path: str | Path, data: bytes, force: bool = False, sweep_stale: bool = True
+) -> Path:
     """Write ``data`` to ``path`` in one step.
+
+    ``sweep_stale=False`` skips looking for old temporaries of this file: for a
+    caller that has swept the whole folder already (a clinic list), since the look
+    reads the folder and would make a long list slow in its square.
 
     Raises:
         OutputExistsError: ``path`` exists and ``force`` is False.
@@ -46,7 +52,8 @@ def write_atomic(path: str | Path, data: bytes, force: bool = False) -> Path:
     dest = Path(path)
     if dest.exists() and not force:
         raise OutputExistsError(str(dest))
-    remove_stale_temporaries(dest)
+    if sweep_stale:
+        remove_stale_temporaries(dest)
     fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=dest.parent or ".")
     try:
         with os.fdopen(fd, "wb") as handle:

@@ -227,8 +227,15 @@ class Course:
     curve: tuple[tuple[int, float], ...]  # (seconds, SaO2 %)
 
 
-def simulate(p: Physiology, horizon_min: float = HORIZON_MIN) -> Course:
-    """Integrate apnoea from the end of pre-oxygenation."""
+def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True) -> Course:
+    """Integrate apnoea from the end of pre-oxygenation.
+
+    ``curve=False`` skips recording the SpO2 curve (only the threshold times are
+    wanted); the times are the same either way. The loop is written out by hand
+    (no function calls per step) because a clinic list runs it thousands of times;
+    every expression keeps the order of operations of :func:`saturation` and the
+    model's equations, so the figures are those of the plain form to the last bit.
+    """
     dry = BAROMETRIC_MMHG - WATER_VAPOUR_MMHG
     hb_cap = HUFNER_ML_PER_G * p.haemoglobin_g_per_l  # mL O2 per L at full saturation
     q = p.cardiac_output_l_per_min / 60.0  # L/s
@@ -247,39 +254,58 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN) -> Course:
         cv = max(0.0, ca - vo2 / q)
     pool = cv * p.blood_volume_l  # mL O2 held in the mixed pool
     t95 = t90 = t80 = None
-    curve: list[tuple[int, float]] = []
+    points: list[tuple[int, float]] = []
     horizon_s = horizon_min * 60.0
-    inflow_o2 = p.pharyngeal_fo2
     shunt, bv, p50 = p.shunt, p.blood_volume_l, p.p50_mmhg
+    kept = 1 - shunt  # the non-shunted fraction
+    flow = q * kept  # q * (1 - shunt), as the uptake below multiplies it
+    o2_in, n2_in = p.pharyngeal_fo2 - 1.0, 1.0 - p.pharyngeal_fo2
+    paco2_start, solubility = p.paco2_mmhg, O2_SOLUBILITY_ML_PER_L_PER_MMHG
+    use_long, use_short = vo2 * STEP_LONG_S, vo2 * STEP_S
     t = 0.0
-    next_point = 0.0
+    next_point = 0.0 if curve else math.inf
     while t <= horizon_s:
-        paco2 = p.paco2_mmhg + PACO2_RISE_MMHG_PER_MIN * max(0.0, t / 60.0 - 1.0)
+        late = t / 60.0 - 1.0
+        paco2 = paco2_start + PACO2_RISE_MMHG_PER_MIN * late if late > 0.0 else paco2_start
         total = v_o2 + v_n2
-        pao2 = max(0.0, (dry - paco2) * v_o2 / total) if total > 0 else 0.0
-        sc = saturation(pao2, p50)
-        cc = hb_cap * sc + O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
+        pao2 = (dry - paco2) * v_o2 / total if total > 0 else 0.0
+        if not pao2 > 0.0:
+            pao2 = 0.0
+        sp = pao2 * SEVERINGHAUS_P50_MMHG / p50
+        sc = 1.0 / (23400.0 / (sp**3 + 150.0 * sp) + 1.0) if sp > 0 else 0.0
+        cc = hb_cap * sc + solubility * pao2
         cv = pool / bv
-        sao2 = (1 - shunt) * sc + shunt * min(1.0, cv / hb_cap)
+        venous = cv / hb_cap
+        sao2 = kept * sc + shunt * (venous if venous < 1.0 else 1.0)
         if t >= next_point:
-            curve.append((int(t), round(100 * sao2, 1)))
+            points.append((int(t), round(100 * sao2, 1)))
             next_point += CURVE_EVERY_S
-        if t95 is None and sao2 < 0.95:
-            t95 = t
-        if t90 is None and sao2 < 0.90:
-            t90 = t
-        if sao2 < 0.80:
-            t80 = t
-            break
+        if sao2 < 0.95:
+            if t95 is None:
+                t95 = t
+            if sao2 < 0.90:
+                if t90 is None:
+                    t90 = t
+                if sao2 < 0.80:
+                    t80 = t
+                    break
         # Long steps while saturation is high and changes slowly, 1 s near the thresholds.
-        dt = STEP_LONG_S if sao2 > STEP_LONG_ABOVE else STEP_S
-        uptake = min(v_o2, max(0.0, q * (1 - shunt) * (cc - cv)) * dt)  # mL this step
+        if sao2 > STEP_LONG_ABOVE:
+            dt, used = STEP_LONG_S, use_long
+        else:
+            dt, used = STEP_S, use_short
+        uptake = flow * (cc - cv)
+        uptake = (uptake if uptake > 0.0 else 0.0) * dt  # mL this step
+        if not uptake < v_o2:
+            uptake = v_o2
         # The lung shrinks by the uptake; the same volume is drawn in from the pharynx.
-        v_o2 += (inflow_o2 - 1.0) * uptake
-        v_n2 += (1.0 - inflow_o2) * uptake
-        pool = max(0.0, pool + uptake - vo2 * dt)
+        v_o2 += o2_in * uptake
+        v_n2 += n2_in * uptake
+        pool = pool + uptake - used
+        if not pool > 0.0:
+            pool = 0.0
         t += dt
-    return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=tuple(curve))
+    return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=tuple(points))
 
 
 class Scenario(BaseModel):
@@ -365,7 +391,7 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
     scenarios = []
     curve: tuple[tuple[int, float], ...] = ()
     for cid, label, phys in cases:
-        course = simulate(phys)
+        course = simulate(phys, curve=cid == "as_assessed")
         if cid == "as_assessed":
             curve, first = course.curve, course
         scenarios.append(

@@ -1,0 +1,65 @@
+"""The JSON contract's bytes: the fast writer equals the standard library's form.
+
+Reference: Python's ``json.dumps(data, sort_keys=True, indent=2, ensure_ascii=False)``,
+the form the README documents and earlier plans were written in.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from hypothesis import given
+from hypothesis import strategies as st
+
+from airway import build_plan, read_assessment
+from airway.clinic import read_clinic_list
+from airway.render_json import dumps, render_json, standard_json
+
+from .conftest import EXAMPLES
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def test_examples_write_the_standard_bytes() -> None:
+    for path in EXAMPLES:
+        plan = build_plan(read_assessment(path))
+        assert render_json(plan) == standard_json(plan.model_dump(mode="json"))
+
+
+def test_every_clinic_list_plan_writes_the_standard_bytes() -> None:
+    rows = read_clinic_list((ROOT / "examples" / "clinic-list.csv").read_text("utf-8"), "x")
+    plans = [build_plan(r.assessment) for r in rows if r.assessment is not None]
+    assert len(plans) > 150
+    for plan in plans:
+        assert render_json(plan) == standard_json(plan.model_dump(mode="json"))
+
+
+def test_plan_reads_back_to_the_same_bytes() -> None:
+    plan = build_plan(read_assessment(EXAMPLES[0]))
+    text = render_json(plan)
+    assert dumps(json.loads(text)) == text
+
+
+SCALARS = (
+    st.none()
+    | st.booleans()
+    | st.integers(min_value=-(2**70), max_value=2**70)
+    | st.floats(allow_nan=True, allow_infinity=True)
+    | st.floats(min_value=-1e-3, max_value=1e-3)  # near the 1e-4 switch to exponents
+    | st.text()
+)
+DOCUMENTS = st.recursive(
+    SCALARS,
+    lambda inner: st.lists(inner, max_size=4) | st.dictionaries(st.text(), inner, max_size=4),
+    max_leaves=25,
+)
+
+
+@given(DOCUMENTS)
+def test_random_documents_write_the_standard_bytes(doc: object) -> None:
+    assert dumps(doc) == standard_json(doc)
+
+
+def test_lone_surrogate_falls_back_to_the_standard_writer() -> None:
+    assert dumps({"a": "\ud800"}) == standard_json({"a": "\ud800"})
