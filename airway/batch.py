@@ -11,22 +11,23 @@ PDFs are made in parallel, one process per core.
 from __future__ import annotations
 
 import json
+import multiprocessing
 import os
+import sys
 from collections import deque
 from collections.abc import Callable
-from concurrent.futures import Future, ProcessPoolExecutor, ThreadPoolExecutor
+from concurrent.futures import Future, ProcessPoolExecutor
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
 
 from .checklists import Checklist
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
 from .equipment import Catalogue
 from .errors import OutputExistsError
 from .loading import read_text_file
-from .output import write_atomic
+from .output import write_atomic, write_group_atomic
 from .plan import assessment_digest, build_plan
-from .plan_model import Plan
+from .render_json import render_json
 
 SUMMARY_CSV = "summary.csv"
 SUMMARY_PDF = "summary.pdf"
@@ -79,12 +80,70 @@ def _still_matches(out: Path, row: Row, pdf: bool) -> bool:
     return True
 
 
-def _write_pdf(job: tuple[Plan, str, str]) -> str:
-    from .render_pdf import render_plan_pdf
+@dataclass(frozen=True)
+class _Job:
+    """What every worker needs to plan rows of the list: sent once, when it starts."""
 
-    plan, paper, path = job
-    write_atomic(path, render_plan_pdf(plan, paper), force=True, sweep_stale=False)
-    return path
+    rows: tuple[Row, ...]  # the good rows, in list order
+    out: Path
+    catalogue: Catalogue
+    checklists: tuple[Checklist, ...]
+    pdf: bool
+    paper: str
+    resume: bool
+
+
+# (row number, its summary line, files written, kept from an earlier run)
+Done = tuple[int, SummaryRow, int, bool]
+CHUNK = 16  # rows a worker plans before it reports (the progress bar moves by this much)
+ROWS_PER_WORKER = 48  # a shorter list is planned in one process: starting one costs more
+
+
+def _plan_rows(job: _Job, start: int, stop: int) -> list[Done]:
+    """Plan rows ``start:stop``: JSON (and PDF) written atomically, flushed to disk.
+
+    The chunk's files are flushed together (one journal commit, not one per file)
+    and the chunk is reported only once all of them are under their names.
+    """
+    done: list[Done] = []
+    files: list[tuple[Path, bytes]] = []
+    for row in job.rows[start:stop]:
+        assert row.assessment is not None
+        plan = build_plan(row.assessment, job.catalogue, job.checklists)
+        line = summary_row(row, plan)
+        if job.resume and _still_matches(job.out, row, job.pdf):
+            done.append((row.number, line, 0, True))
+            continue
+        files.append((job.out / f"{row.id}.json", render_json(plan).encode("utf-8")))
+        if job.pdf:
+            from .render_pdf import render_plan_pdf
+
+            files.append((job.out / f"{row.id}.pdf", render_plan_pdf(plan, job.paper)))
+        done.append((row.number, line, 2 if job.pdf else 1, False))
+    write_group_atomic(files)
+    return done
+
+
+_WORKER_JOB: _Job | None = None
+
+
+def _start_worker(job: _Job | None) -> None:
+    global _WORKER_JOB
+    _WORKER_JOB = job
+
+
+def _pool(workers: int, job: _Job) -> ProcessPoolExecutor:
+    """Worker processes that hold the job: inherited by fork where the system forks
+    (no copy made), else sent to each worker once as it starts."""
+    if "fork" in multiprocessing.get_all_start_methods() and sys.platform.startswith("linux"):
+        _start_worker(job)  # the workers are forked with it in place
+        return ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork"))
+    return ProcessPoolExecutor(workers, initializer=_start_worker, initargs=(job,))
+
+
+def _worker_rows(start: int, stop: int) -> list[Done]:
+    assert _WORKER_JOB is not None
+    return _plan_rows(_WORKER_JOB, start, stop)
 
 
 def run_batch(
@@ -119,65 +178,45 @@ def run_batch(
             f"{out} already holds {len(existing)} of this list's outputs (e.g. "
             f"{existing[0]}); use --force to replace them or --resume to keep finished rows",
         )
-    from .render_json import render_json
-
-    good = [r for r in rows if r.assessment is not None]
+    good = tuple(r for r in rows if r.assessment is not None)
     total = len(good)
     counts = {"done": 0, "written": 0, "kept": 0}
     lines: dict[int, SummaryRow] = {}
 
-    def finished(files: int) -> None:
-        counts["done"] += 1
-        counts["written"] += files
+    def finished(chunk: list[Done]) -> None:
+        for number, line, files, kept in chunk:
+            lines[number] = line
+            counts["done"] += 1
+            counts["written"] += files
+            counts["kept"] += kept
         if progress:
             progress(counts["done"], total)
 
-    workers = 1 if not pdf else (jobs or os.cpu_count() or 1)
-    # Plans are summarised and let go as they are made, and at most a few files wait
-    # to be written, so memory stays flat however long the list. PDFs are made in
-    # worker processes; JSON files are written (and flushed to disk) on one thread
-    # while the next plan is made.
-    pool = ProcessPoolExecutor(max_workers=workers) if workers > 1 else None
-    writer = ThreadPoolExecutor(max_workers=1, thread_name_prefix="airway-writer")
-    pending: deque[tuple[Future[Any], int]] = deque()
-    limit = 4 * max(workers, 2)
-
-    def wait(all_of_them: bool = False) -> None:
-        while pending and (all_of_them or len(pending) >= limit or pending[0][0].done()):
-            future, files = pending.popleft()
-            future.result()
-            finished(files)
-
-    try:
-        for row in good:
-            assert row.assessment is not None
-            plan = build_plan(row.assessment, catalogue, checklists)
-            lines[row.number] = summary_row(row, plan)
-            if resume and _still_matches(out, row, pdf):
-                counts["kept"] += 1
-                finished(0)
-                continue
-            data = render_json(plan).encode("utf-8")
-            target = out / f"{row.id}.json"
-            saved = writer.submit(write_atomic, target, data, True, False)
-            if not pdf:
-                pending.append((saved, 1))
-                wait()
-                continue
-            job = (plan, paper, str(out / f"{row.id}.pdf"))
-            if pool is None:
-                saved.result()
-                _write_pdf(job)
-                finished(2)
-                continue
-            pending.append((saved, 0))
-            pending.append((pool.submit(_write_pdf, job), 2))
-            wait()
-        wait(all_of_them=True)
-    finally:
-        writer.shutdown(wait=True, cancel_futures=True)
-        if pool is not None:
-            pool.shutdown(cancel_futures=True)
+    job = _Job(good, out, catalogue, checklists, pdf, paper, resume)
+    chunks = [(i, min(i + CHUNK, total)) for i in range(0, total, CHUNK)]
+    cores = os.cpu_count() or 1
+    workers = jobs or min(cores, max(1, total // ROWS_PER_WORKER))
+    if workers == 1:
+        for start, stop in chunks:
+            finished(_plan_rows(job, start, stop))
+    else:
+        # Each worker gets the list once and plans chunks of it; summaries come back,
+        # plans never cross between processes. At most a few chunks wait at a time,
+        # so memory stays flat however long the list.
+        with _pool(workers, job) as pool:
+            waiting: deque[Future[list[Done]]] = deque()
+            try:
+                for start, stop in chunks:
+                    waiting.append(pool.submit(_worker_rows, start, stop))
+                    while len(waiting) >= 2 * workers:
+                        finished(waiting.popleft().result())
+                while waiting:
+                    finished(waiting.popleft().result())
+            except BaseException:
+                pool.shutdown(wait=True, cancel_futures=True)
+                raise
+            finally:
+                _start_worker(None)  # the parent keeps no copy of the job
     written, kept = counts["written"], counts["kept"]
     summary = tuple(lines.get(r.number) or summary_row(r, None) for r in rows)
     write_atomic(

@@ -585,7 +585,7 @@ def batch(
             "--jobs",
             metavar="N",
             min=1,
-            help="PDF processes (default: all cores).",
+            help="Processes (default: all cores for a long list).",
             rich_help_panel=OUT,
         ),
     ] = None,

@@ -119,3 +119,74 @@ def test_two_writers_with_force_leave_one_complete_file(tmp_path: Path) -> None:
     data = dest.read_bytes()
     assert data.startswith(b"%PDF") and data.rstrip().endswith(b"%%EOF")
     assert [p.name for p in tmp_path.iterdir()] == ["plan.pdf"]
+
+
+ROOT = Path(__file__).resolve().parent.parent
+CLINIC = ROOT / "examples" / "clinic-list.csv"
+
+
+def _complete_plans(folder: Path) -> int:
+    """How many JSON plans are under their final names; each must parse whole."""
+    import json
+
+    plans = [p for p in folder.glob("*.json")]
+    for p in plans:
+        assert json.loads(p.read_text("utf-8"))["input_sha256"]
+    return len(plans)
+
+
+def test_full_disk_mid_list_exit_1_finished_rows_complete(runner, tmp_path, monkeypatch):
+    """The disk fills after some rows: exit 1 naming a file, no temporary left behind,
+    every plan already under its name complete; --resume then finishes the list."""
+    import airway.batch  # noqa: F401 - imports the pool's pipes before os.write is patched
+
+    real_write, calls = os.write, {"n": 0}
+
+    def filling(fd: int, data: object) -> int:
+        calls["n"] += 1
+        if calls["n"] > 40:
+            raise OSError(errno.ENOSPC, "No space left on device")
+        return real_write(fd, data)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(output.os, "write", filling)
+    out = tmp_path / "plans"
+    r = runner.invoke(app, ["batch", str(CLINIC), "--out", str(out), "--jobs", "1"])
+    assert r.exit_code == 1 and "No space left on device" in r.stderr
+    assert "Traceback" not in r.output and str(out) in r.stderr
+    assert not list(out.glob(".*.tmp"))
+    finished = _complete_plans(out)
+    assert 0 < finished < 194
+    monkeypatch.setattr(output.os, "write", real_write)
+    r = runner.invoke(app, ["batch", str(CLINIC), "--out", str(out), "--resume"])
+    assert r.exit_code == 2, r.stderr  # the example list has six marked bad rows
+    assert _complete_plans(out) == 194 and not list(out.glob(".*.tmp"))
+
+
+def test_killed_mid_list_leaves_complete_plans_and_resume_finishes(tmp_path: Path) -> None:
+    """A real SIGKILL while two workers plan the list; then --resume completes it."""
+    out = tmp_path / "plans"
+    exe = [sys.executable, "-m", "airway", "batch", str(CLINIC), "--out", str(out)]
+    proc = subprocess.Popen([*exe, "--jobs", "2"], stdout=subprocess.DEVNULL)
+    deadline = time.time() + 60
+    while time.time() < deadline and len(list(out.glob("*.json"))) < 20:
+        time.sleep(0.01)
+    os.kill(proc.pid, signal.SIGKILL)
+    proc.wait(timeout=20)
+    time.sleep(0.5)  # orphaned workers notice their parent is gone and stop
+    _complete_plans(out)
+    done = subprocess.run([*exe, "--resume"], capture_output=True, text=True, check=False)
+    assert done.returncode == 2, done.stderr
+    assert _complete_plans(out) == 194 and not list(out.glob(".*.tmp"))
+    assert (out / "summary.csv").is_file()
+
+
+def test_group_flush_falls_back_to_fsync_each_file(tmp_path: Path, monkeypatch) -> None:
+    """Where there is no syncfs (not Linux), every file is fsynced before it is named."""
+    synced: list[int] = []
+    monkeypatch.setattr(output.sys, "platform", "darwin")
+    monkeypatch.setattr(output.os, "fsync", synced.append)
+    files = [(tmp_path / f"p{i}.json", f"plan {i}".encode()) for i in range(3)]
+    output.write_group_atomic(files)
+    assert len(synced) == 3
+    assert [p.read_text() for p, _ in files] == ["plan 0", "plan 1", "plan 2"]
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["p0.json", "p1.json", "p2.json"]

@@ -51,7 +51,11 @@ SCALARS = (
 )
 DOCUMENTS = st.recursive(
     SCALARS,
-    lambda inner: st.lists(inner, max_size=4) | st.dictionaries(st.text(), inner, max_size=4),
+    lambda inner: (
+        st.lists(inner, max_size=4)
+        | st.lists(inner, max_size=3).map(tuple)
+        | st.dictionaries(st.text(), inner, max_size=4)
+    ),
     max_leaves=25,
 )
 
@@ -61,5 +65,21 @@ def test_random_documents_write_the_standard_bytes(doc: object) -> None:
     assert dumps(doc) == standard_json(doc)
 
 
+@given(st.dictionaries(st.text(), DOCUMENTS, min_size=1, max_size=6))
+def test_random_objects_write_the_standard_bytes(doc: dict[str, object]) -> None:
+    # Objects take the fast path unless a number needs an exponent.
+    assert dumps(doc) == standard_json(doc)
+
+
 def test_lone_surrogate_falls_back_to_the_standard_writer() -> None:
     assert dumps({"a": "\ud800"}) == standard_json({"a": "\ud800"})
+
+
+def test_floats_of_every_size_write_the_standard_bytes() -> None:
+    """Decade by decade from 1e-12 to 1e20, where Python's float repr changes form."""
+    mantissas = (1.0, 1.5, 2.5, 3.14159, 9.99, 9.999999)
+    for exponent in range(-12, 21):
+        for m in mantissas:
+            for value in (m * 10.0**exponent, -m * 10.0**exponent, round(m * 10.0**exponent, 1)):
+                doc = {"value": value, "list": [value, {"nested": value}]}
+                assert dumps(doc) == standard_json(doc), value
