@@ -14,6 +14,8 @@ import json
 import multiprocessing
 import os
 import sys
+import threading
+import time
 from collections import deque
 from collections.abc import Callable
 from concurrent.futures import Future, ProcessPoolExecutor
@@ -132,13 +134,39 @@ def _start_worker(job: _Job | None) -> None:
     _WORKER_JOB = job
 
 
+PARENT_CHECK_S = 0.2
+
+
+def _watch_parent(parent: int, job: _Job | None = None) -> None:
+    """In a worker: exit as soon as the process that started it is gone.
+
+    A killed ``airway batch`` must not leave workers behind. Files a worker was
+    writing are left as temporaries, which the next run removes.
+    """
+    if job is not None:
+        _start_worker(job)
+
+    def watch() -> None:
+        while os.getppid() == parent:
+            time.sleep(PARENT_CHECK_S)
+        os._exit(1)
+
+    threading.Thread(target=watch, name="airway-parent-watch", daemon=True).start()
+
+
 def _pool(workers: int, job: _Job) -> ProcessPoolExecutor:
     """Worker processes that hold the job: inherited by fork where the system forks
     (no copy made), else sent to each worker once as it starts."""
+    parent = os.getpid()
     if "fork" in multiprocessing.get_all_start_methods() and sys.platform.startswith("linux"):
         _start_worker(job)  # the workers are forked with it in place
-        return ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork"))
-    return ProcessPoolExecutor(workers, initializer=_start_worker, initargs=(job,))
+        return ProcessPoolExecutor(
+            workers,
+            mp_context=multiprocessing.get_context("fork"),
+            initializer=_watch_parent,
+            initargs=(parent,),
+        )
+    return ProcessPoolExecutor(workers, initializer=_watch_parent, initargs=(parent, job))
 
 
 def _worker_rows(start: int, stop: int) -> list[Done]:

@@ -162,6 +162,29 @@ def test_full_disk_mid_list_exit_1_finished_rows_complete(runner, tmp_path, monk
     assert _complete_plans(out) == 194 and not list(out.glob(".*.tmp"))
 
 
+def _children(parent: int) -> list[int]:
+    """Processes whose parent is ``parent`` (Linux /proc)."""
+    found = []
+    for stat in Path("/proc").glob("[0-9]*/stat"):
+        try:
+            fields = stat.read_text().rsplit(")", 1)[1].split()
+        except OSError:
+            continue
+        if int(fields[1]) == parent:
+            found.append(int(stat.parent.name))
+    return found
+
+
+def _running(pid: int) -> bool:
+    """Alive and not a zombie waiting to be reaped."""
+    try:
+        state = Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()[0]
+    except OSError:
+        return False
+    return state != "Z"
+
+
+@pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="reads /proc")
 def test_killed_mid_list_leaves_complete_plans_and_resume_finishes(tmp_path: Path) -> None:
     """A real SIGKILL while two workers plan the list; then --resume completes it."""
     out = tmp_path / "plans"
@@ -170,9 +193,14 @@ def test_killed_mid_list_leaves_complete_plans_and_resume_finishes(tmp_path: Pat
     deadline = time.time() + 60
     while time.time() < deadline and len(list(out.glob("*.json"))) < 20:
         time.sleep(0.01)
+    workers = _children(proc.pid)
+    assert workers, "the list should be planned by worker processes"
     os.kill(proc.pid, signal.SIGKILL)
     proc.wait(timeout=20)
-    time.sleep(0.5)  # orphaned workers notice their parent is gone and stop
+    deadline = time.time() + 10
+    while time.time() < deadline and any(_running(w) for w in workers):
+        time.sleep(0.05)
+    assert not any(_running(w) for w in workers), "workers outlived the killed run"
     _complete_plans(out)
     done = subprocess.run([*exe, "--resume"], capture_output=True, text=True, check=False)
     assert done.returncode == 2, done.stderr
