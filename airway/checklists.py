@@ -28,7 +28,6 @@ import functools
 import hashlib
 import json
 import re
-import tomllib
 from collections.abc import Callable
 from importlib import resources
 from pathlib import Path
@@ -232,6 +231,8 @@ def _item(text: str, checked: bool | None, path: str, line: int) -> Item:
 
 def parse_checklist(text: str, path: str) -> Checklist:
     """Parse one checklist file; every error names ``path`` and the line."""
+    import tomllib  # with the Markdown parser, only when a checklist is parsed
+
     tokens = _parser().parse(text)
     meta: FrontMatter | None = None
     sections: list[Section] = []

@@ -7,7 +7,8 @@ on the trolley.
 
 from __future__ import annotations
 
-import tomllib
+import hashlib
+import json
 from importlib import resources
 from pathlib import Path
 
@@ -104,12 +105,50 @@ class Catalogue(BaseModel):
         return nearest.size
 
 
+# The shipped catalogue, already parsed, beside the SHA-256 of the TOML it came from.
+# Reading it spares importing the TOML parser on the emergency path (4-8 ms); when
+# the digest does not match the TOML (edited, not regenerated) the TOML is parsed,
+# so the copy can make a command faster but never different. Rewrite it with
+# ``python -m airway.equipment`` (tests/test_equipment.py fails while it is stale).
+SHIPPED_TOML = "data/equipment.toml"
+SHIPPED_PARSED = "data/equipment-parsed.json"
+
+
+def _shipped_toml() -> str:
+    return resources.files("airway").joinpath(SHIPPED_TOML).read_text("utf-8")
+
+
+def shipped_parsed_text() -> str:
+    """The parsed copy's content for the shipped catalogue as it is now."""
+    import tomllib
+
+    text = _shipped_toml()
+    entry = {"sha256": hashlib.sha256(text.encode("utf-8")).hexdigest()}
+    entry["catalogue"] = tomllib.loads(text)
+    return json.dumps(entry, indent=1, sort_keys=True, ensure_ascii=False) + "\n"
+
+
+def _shipped_data() -> object:
+    text = _shipped_toml()
+    try:
+        copy = json.loads(resources.files("airway").joinpath(SHIPPED_PARSED).read_text("utf-8"))
+    except (OSError, ValueError):
+        copy = None
+    if (
+        isinstance(copy, dict)
+        and copy.get("sha256") == hashlib.sha256(text.encode("utf-8")).hexdigest()
+    ):
+        return copy.get("catalogue")
+    import tomllib
+
+    return tomllib.loads(text)
+
+
 def load_catalogue(path: Path | None = None) -> Catalogue:
     """Read a catalogue TOML file; the shipped one when ``path`` is None."""
     if path is None:
-        text = resources.files("airway").joinpath("data/equipment.toml").read_text("utf-8")
         name = "shipped equipment catalogue"
-        data = tomllib.loads(text)
+        data = _shipped_data()
     else:
         name = str(path)
         data = read_toml_file(path, CatalogueError)
@@ -273,3 +312,8 @@ def choose_equipment(
         else "direct laryngoscope (videolaryngoscope on and ready)",
         items=tuple(items),
     )
+
+
+if __name__ == "__main__":  # python -m airway.equipment: rewrite the shipped parsed copy
+    target = Path(__file__).parent / SHIPPED_PARSED
+    target.write_text(shipped_parsed_text(), encoding="utf-8")

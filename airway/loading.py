@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import json
 import sys
-import tomllib
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
@@ -104,6 +103,8 @@ def _refuse_duplicates(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
 
 
 def _decode(text: str, source: str, fmt: str) -> object:
+    import tomllib  # here, not at the top: the emergency path reads no TOML
+
     try:
         if fmt == "json":
             return json.loads(text, object_pairs_hook=_refuse_duplicates)
@@ -160,6 +161,8 @@ def read_text_file(path: Path, error: type[InputError] = InputError) -> str:
 
 def read_toml_file(path: Path, error: type[InputError] = InputError) -> dict[str, Any]:
     """A TOML file as a table; every way it can fail is ``error`` naming the file."""
+    import tomllib
+
     text = read_text_file(path, error)
     try:
         return tomllib.loads(text)

@@ -13,7 +13,6 @@ file; the shipped files are the fallback for anything not given.
 
 from __future__ import annotations
 
-import tomllib
 from importlib import resources
 from pathlib import Path
 
@@ -68,6 +67,8 @@ def load_unit_paths(config: Path | None) -> UnitPaths:
 def load_contacts(path: Path | None = None) -> tuple[Contact, ...]:
     """The unit's contact list; the shipped one (roles, blank numbers) when None."""
     if path is None:
+        import tomllib
+
         text = resources.files("airway").joinpath("data/contacts.toml").read_text("utf-8")
         data = tomllib.loads(text)
         name = "shipped contact list"

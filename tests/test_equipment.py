@@ -83,3 +83,45 @@ def test_large_breasts_open_a_short_handle() -> None:
     assert any(i.name == "Short-handled laryngoscope" for i in eq.items)
     eq = choose_equipment(make(), body_size(80, 165), 1, CATALOGUE)
     assert not any(i.name == "Short-handled laryngoscope" for i in eq.items)
+
+
+def test_shipped_parsed_catalogue_is_current() -> None:
+    """The parsed copy read on the emergency path is the shipped TOML, parsed now
+    (regenerate with `python -m airway.equipment`)."""
+    import json
+    import tomllib
+    from importlib import resources
+
+    from airway import equipment
+
+    on_disk = resources.files("airway").joinpath(equipment.SHIPPED_PARSED).read_text("utf-8")
+    assert on_disk == equipment.shipped_parsed_text()
+    toml = resources.files("airway").joinpath(equipment.SHIPPED_TOML).read_text("utf-8")
+    assert json.loads(on_disk)["catalogue"] == tomllib.loads(toml)
+
+
+def test_stale_parsed_catalogue_is_ignored(monkeypatch) -> None:
+    """An edited shipped TOML is read as edited, whatever the parsed copy says."""
+    from airway import equipment
+
+    edited = equipment._shipped_toml().replace("7.0", "7.5", 1)
+    assert edited != equipment._shipped_toml()
+    monkeypatch.setattr(equipment, "_shipped_toml", lambda: edited)
+    import tomllib
+
+    expected = equipment.Catalogue.model_validate(tomllib.loads(edited))
+    assert equipment.load_catalogue() == expected
+
+
+def test_emergency_path_does_not_import_the_toml_parser() -> None:
+    import subprocess
+    import sys
+
+    code = (
+        "import sys; sys.argv = ['airway', 'quick', '--weight-kg', '90']\n"
+        "from airway import cli\n"
+        "try:\n    cli.main()\nexcept SystemExit:\n    pass\n"
+        "print('TOML', 'tomllib' in sys.modules, file=sys.stderr)"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=False)
+    assert "TOML False" in out.stderr
