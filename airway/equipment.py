@@ -123,8 +123,10 @@ def shipped_parsed_text() -> str:
     import tomllib
 
     text = _shipped_toml()
-    entry = {"sha256": hashlib.sha256(text.encode("utf-8")).hexdigest()}
-    entry["catalogue"] = tomllib.loads(text)
+    entry = {
+        "sha256": hashlib.sha256(text.encode("utf-8")).hexdigest(),
+        "catalogue": tomllib.loads(text),
+    }
     return json.dumps(entry, indent=1, sort_keys=True, ensure_ascii=False) + "\n"
 
 
