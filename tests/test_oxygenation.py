@@ -178,3 +178,72 @@ def test_preoxygenation_step_states_the_technique() -> None:
     text = " ".join(step.actions)
     assert "3 min of tidal breathing" in text and "8 vital-capacity breaths in 60 s" in text
     assert "at least 0.9" in text
+
+
+def _plain_simulate(p, horizon_min: float = 20.0) -> tuple:  # type: ignore[no-untyped-def]
+    """The model's equations in their plain form, one call per step, as first written.
+
+    The hand-written loop in ``oxygenation.simulate`` must give exactly these figures:
+    it only moves constants out of the loop and calls out of each step.
+    """
+    from airway import oxygenation as o
+
+    dry = o.BAROMETRIC_MMHG - o.WATER_VAPOUR_MMHG
+    hb_cap = o.HUFNER_ML_PER_G * p.haemoglobin_g_per_l
+    q, vo2 = p.cardiac_output_l_per_min / 60.0, p.vo2_ml_per_min / 60.0
+    v_o2 = p.feo2 * p.frc_ml
+    v_n2 = max(0.0, 1.0 - p.feo2 - p.paco2_mmhg / dry) * p.frc_ml
+    pao2 = (dry - p.paco2_mmhg) * v_o2 / (v_o2 + v_n2)
+    cc = hb_cap * o.saturation(pao2, p.p50_mmhg) + o.O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
+    cv = 0.0
+    for _ in range(30):
+        cv = max(0.0, (1 - p.shunt) * cc + p.shunt * cv - vo2 / q)
+    pool, t, marks, curve, next_point = cv * p.blood_volume_l, 0.0, {}, [], 0.0
+    while t <= horizon_min * 60.0:
+        paco2 = p.paco2_mmhg + o.PACO2_RISE_MMHG_PER_MIN * max(0.0, t / 60.0 - 1.0)
+        total = v_o2 + v_n2
+        pao2 = max(0.0, (dry - paco2) * v_o2 / total) if total > 0 else 0.0
+        sc = o.saturation(pao2, p.p50_mmhg)
+        cc = hb_cap * sc + o.O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
+        cv = pool / p.blood_volume_l
+        sao2 = (1 - p.shunt) * sc + p.shunt * min(1.0, cv / hb_cap)
+        if t >= next_point:
+            curve.append((int(t), round(100 * sao2, 1)))
+            next_point += o.CURVE_EVERY_S
+        for threshold in (0.95, 0.90, 0.80):
+            if sao2 < threshold:
+                marks.setdefault(threshold, t)
+        if sao2 < 0.80:
+            break
+        dt = o.STEP_LONG_S if sao2 > o.STEP_LONG_ABOVE else o.STEP_S
+        uptake = min(v_o2, max(0.0, q * (1 - p.shunt) * (cc - cv)) * dt)
+        v_o2 += (p.pharyngeal_fo2 - 1.0) * uptake
+        v_n2 += (1.0 - p.pharyngeal_fo2) * uptake
+        pool = max(0.0, pool + uptake - vo2 * dt)
+        t += dt
+    return marks.get(0.95), marks.get(0.90), marks.get(0.80), tuple(curve)
+
+
+def test_hand_written_loop_gives_the_plain_equations_figures_exactly() -> None:
+    import random
+
+    from airway.oxygenation import physiology, simulate
+
+    rng = random.Random(20261202)
+    for _ in range(150):
+        p = physiology(
+            weight_kg=rng.uniform(35, 250),
+            height_cm=rng.uniform(125, 205),
+            age_years=rng.uniform(14, 60),
+            pregnant=rng.random() < 0.9,
+            in_labour=rng.random() < 0.4,
+            haemoglobin_g_per_l=rng.choice([None, rng.uniform(50, 190)]),
+            feo2=rng.choice([0.9, 0.7, rng.uniform(0.5, 0.95)]),
+            pharyngeal_fo2=rng.choice([0.21, 0.5, 1.0]),
+        )
+        course = simulate(p)
+        fast = (course.seconds_to_95, course.seconds_to_90, course.seconds_to_80, course.curve)
+        assert fast == _plain_simulate(p)
+        quiet = simulate(p, curve=False)
+        assert (quiet.seconds_to_95, quiet.seconds_to_90, quiet.seconds_to_80) == fast[:3]
+        assert quiet.curve == ()
