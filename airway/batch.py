@@ -5,7 +5,7 @@ or a full disk leaves each finished output complete and no half-written file
 under a final name; temporary files left by a killed run are removed by the next.
 A folder that already holds outputs is refused unless ``force`` (replace) or
 ``resume`` (keep rows whose outputs are complete and still match their row).
-PDFs are made in parallel, one process per core.
+A long list is planned in parallel, one process per core, in chunks of rows.
 """
 
 from __future__ import annotations
