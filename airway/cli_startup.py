@@ -59,12 +59,16 @@ def share_adapters() -> bool:
         return build is not None
     cache: dict[tuple[Any, ...], Any] = {}
 
-    def shared(annotation: Any, parameter_info: Any) -> Any:
-        key = adapter_key(annotation, parameter_info)
+    def shared(*args: Any, **kwargs: Any) -> Any:
+        # Called as try_build_adapter(annotation=..., parameter_info=...); any other
+        # call (a typer release that changed it) goes straight through, unshared.
+        if args or set(kwargs) != {"annotation", "parameter_info"}:
+            return build(*args, **kwargs)
+        key = adapter_key(kwargs["annotation"], kwargs["parameter_info"])
         if key is None:
-            return build(annotation, parameter_info)
+            return build(**kwargs)
         if key not in cache:
-            cache[key] = build(annotation, parameter_info)
+            cache[key] = build(**kwargs)
         return cache[key]
 
     shared_fn: Callable[..., Any] = shared

@@ -67,3 +67,24 @@ def test_shared_checkers_answer_as_typer_does(args: list[str]) -> None:
     assert shared.returncode == bare.exit_code
     assert shared.stdout == bare.stdout
     assert shared.stderr == bare.stderr
+
+
+def test_quick_builds_one_checker_per_kind_of_option(monkeypatch) -> None:
+    """`quick` has about 30 options but few kinds of value: far fewer checkers are built."""
+    from typer import _adapters
+
+    from airway.cli_startup import share_adapters
+
+    built: list[object] = []
+    real = _adapters.try_build_adapter
+
+    def counting(*args: object, **kwargs: object) -> object:
+        built.append(kwargs.get("annotation"))
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(_adapters, "try_build_adapter", counting)
+    assert share_adapters()
+    result = CliRunner().invoke(app, ["quick", "--weight-kg", "90", "-f", "json"])
+    assert result.exit_code == 0, result.output
+    options = sum(1 for p in typer.main.get_command(app).commands["quick"].params)  # type: ignore[attr-defined]
+    assert options >= 25 and 0 < len(built) <= 10
