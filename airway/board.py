@@ -18,7 +18,7 @@ from pydantic import ValidationError
 from .decision import SHORT, by_category_text
 from .oxygenation import minutes_label
 from .plan import RULES_VERSION
-from .plan_model import Plan
+from .plan_model import Plan, plan_from_data
 
 DEFAULT_MAX_AGE_DAYS = 14  # project rule: a clinic plan older than two weeks is checked again
 SKIPPED = ("summary",)  # the clinic summary lives in the same folder
@@ -44,7 +44,7 @@ def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
         if path.stem in SKIPPED:
             continue
         try:
-            plans.append((path.stem, Plan.model_validate(json.loads(path.read_text("utf-8")))))
+            plans.append((path.stem, plan_from_data(json.loads(path.read_text("utf-8")))))
         except (OSError, ValueError, ValidationError):
             skipped.append(f"{path.name}: not a plan this version can read; left off the board")
     return plans, skipped

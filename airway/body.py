@@ -6,7 +6,7 @@ All formulas come from non-pregnant adults; none has been validated at term
 
 from __future__ import annotations
 
-from pydantic import BaseModel, ConfigDict
+from typing import NamedTuple
 
 from .sources import Evidence
 
@@ -75,10 +75,8 @@ def adjusted_weight(weight_kg: float, ideal_kg: float) -> float:
     return ideal_kg + ADJUSTED_WEIGHT_FACTOR * (weight_kg - ideal_kg)
 
 
-class BodySize(BaseModel):
+class BodySize(NamedTuple):
     """The scalars a plan doses on; ``None`` when height was not given."""
-
-    model_config = ConfigDict(frozen=True)
 
     weight_kg: float
     height_cm: float | None

@@ -253,7 +253,7 @@ def plan(
 
             earlier = _plan_for(read_assessment(since), catalogue, checklists, config)
             changes = compare_plans(earlier, the_plan)
-            the_plan = the_plan.model_copy(update={"changes_since": changes})
+            the_plan = the_plan._replace(changes_since=changes)
         _write_pdf(the_plan, pdf, paper, force)
         if pdf is None or output is not None:
             _emit(_render(the_plan, fmt), output, force)
@@ -481,12 +481,13 @@ def oxygen(
     """
     from .loading import read_assessment
     from .oxygenation import oxygenation_for
+    from .plan_model import plain
     from .render_text import oxygenation_lines
 
     with _errors():
         oxy = oxygenation_for(read_assessment(file), feo2=end_tidal_o2)
     if _data_format(fmt, old_json) is DataFormat.json:
-        sys.stdout.write(json.dumps(oxy.model_dump(mode="json"), indent=2, sort_keys=True) + "\n")
+        sys.stdout.write(json.dumps(plain(oxy), indent=2, sort_keys=True) + "\n")
     else:
         sys.stdout.write("\n".join(oxygenation_lines(oxy)[1:]) + "\n")
 
@@ -649,15 +650,14 @@ def compare(
     """
     from .compare import compare_plans, render_comparison
     from .loading import read_assessment
+    from .plan_model import plain
 
     with _errors():
         before = _plan_for(read_assessment(earlier), catalogue, checklists, config)
         after = _plan_for(read_assessment(later), catalogue, checklists, config)
     comparison = compare_plans(before, after)
     if fmt is DataFormat.json:
-        sys.stdout.write(
-            json.dumps(comparison.model_dump(mode="json"), indent=2, sort_keys=True) + "\n"
-        )
+        sys.stdout.write(json.dumps(plain(comparison), indent=2, sort_keys=True) + "\n")
     else:
         sys.stdout.write(render_comparison(comparison, after))
 

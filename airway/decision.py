@@ -12,7 +12,7 @@ recommends; the clinician ticks the final decision.
 
 from __future__ import annotations
 
-from pydantic import BaseModel, ConfigDict
+from typing import NamedTuple
 
 from .assessment import Assessment
 from .body import BodySize
@@ -74,8 +74,7 @@ def by_category_text(if_category: dict[str, str]) -> str:
     )
 
 
-class DecisionFactor(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class DecisionFactor(NamedTuple):
     name: str
     finding: str
     points: int
@@ -83,10 +82,9 @@ class DecisionFactor(BaseModel):
     derived: bool  # derived from other findings rather than stated
 
 
-class Decision(BaseModel):
+class Decision(NamedTuple):
     """The pre-made decision for the moment intubation has failed."""
 
-    model_config = ConfigDict(frozen=True)
     recommendation: str  # "wake", "proceed", "balanced", "decide_on_the_day"
     headline: str  # HEADLINE[recommendation]
     phrase: str  # PHRASE[recommendation]

@@ -7,9 +7,7 @@ Where sources disagree on the scalar, the dose carries the alternatives.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Literal
-
-from pydantic import BaseModel, ConfigDict
+from typing import Literal, NamedTuple
 
 from .body import BodySize
 from .sources import Evidence
@@ -156,8 +154,7 @@ DRUGS: tuple[Drug, ...] = (
 BY_NAME = {d.name: d for d in DRUGS}
 
 
-class Alternative(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class Alternative(NamedTuple):
     scalar: str
     weight_kg: float
     dose_mg_low: float
@@ -165,10 +162,9 @@ class Alternative(BaseModel):
     source: str
 
 
-class Dose(BaseModel):
+class Dose(NamedTuple):
     """One computed dose range."""
 
-    model_config = ConfigDict(frozen=True)
     drug: str
     label: str
     role: str

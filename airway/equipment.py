@@ -11,6 +11,7 @@ import hashlib
 import json
 from importlib import resources
 from pathlib import Path
+from typing import NamedTuple
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
 
@@ -166,8 +167,7 @@ def _snap(desired: float, stocked: tuple[float, ...]) -> float:
     return max(below) if below else min(stocked)
 
 
-class TubeSizes(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class TubeSizes(NamedTuple):
     first: float
     backup: float
     smallest: float
@@ -175,18 +175,16 @@ class TubeSizes(BaseModel):
     evidence: str
 
 
-class Item(BaseModel):
+class Item(NamedTuple):
     """One thing to have ready, and why."""
 
-    model_config = ConfigDict(frozen=True)
     name: str
     detail: str
     why: str
     open_now: bool  # opened on top of the trolley, not just in the room
 
 
-class Equipment(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class Equipment(NamedTuple):
     tracheal_tube_mm: TubeSizes
     supraglottic_size: float
     supraglottic_device: str

@@ -18,8 +18,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
-
-from pydantic import BaseModel, ConfigDict
+from typing import NamedTuple
 
 from .assessment import Assessment
 from .sources import Evidence
@@ -308,8 +307,7 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=tuple(points))
 
 
-class Scenario(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class Scenario(NamedTuple):
     id: str
     label: str
     end_tidal_o2: float
@@ -318,10 +316,9 @@ class Scenario(BaseModel):
     minutes_to_spo2_80: float | None
 
 
-class Oxygenation(BaseModel):
+class Oxygenation(NamedTuple):
     """The plan's oxygenation section."""
 
-    model_config = ConfigDict(frozen=True)
     minutes_to_spo2_90: float | None  # as assessed; None = more than the horizon
     minutes_to_spo2_80: float | None
     horizon_minutes: float
@@ -413,8 +410,8 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         scenarios=tuple(scenarios),
         curve=curve,
         inputs={
-            "frc_ml": round(base.frc_ml),
-            "vo2_ml_per_min": round(base.vo2_ml_per_min),
+            "frc_ml": float(round(base.frc_ml)),
+            "vo2_ml_per_min": float(round(base.vo2_ml_per_min)),
             "cardiac_output_l_per_min": round(base.cardiac_output_l_per_min, 1),
             "blood_volume_l": round(base.blood_volume_l, 2),
             "haemoglobin_g_per_l": base.haemoglobin_g_per_l,

@@ -367,4 +367,4 @@ def build_plan(
     if checklists is None:
         checklists = load_checklists()
     filled = tuple(for_plan(c, plan) for c in checklists if "plan" in c.meta.use)
-    return plan.model_copy(update={"checklists": filled})
+    return plan._replace(checklists=filled)

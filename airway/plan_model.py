@@ -3,11 +3,20 @@
 Models only, no logic: the checklist filler (:mod:`airway.checklists`) and the
 plan builder (:mod:`airway.plan`) both import from here, so imports run one
 way: ``plan`` -> ``checklists`` -> ``plan_model``.
+
+What the engine computes is held in typed named tuples: immutable, built without
+validation (the engine's own values, checked by the tests for their declared
+types) and cheap to define at start-up and to build thousands of times in a
+clinic list. Only what comes from outside is validated by pydantic: the
+assessment, unit files, and a saved plan read back (:func:`plan_from_data`).
 """
 
 from __future__ import annotations
 
-from pydantic import BaseModel, ConfigDict
+from functools import cache
+from typing import TYPE_CHECKING, Any, NamedTuple
+
+from pydantic import BaseModel
 
 from .assessment import Assessment
 from .body import BodySize
@@ -17,32 +26,31 @@ from .equipment import Equipment
 from .oxygenation import Oxygenation
 from .scoring import Risk
 
+if TYPE_CHECKING:
+    from pydantic import TypeAdapter
 
-class RenderedItem(BaseModel):
-    model_config = ConfigDict(frozen=True)
+
+class RenderedItem(NamedTuple):
     text: str
     checkbox: bool
 
 
-class RenderedSection(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class RenderedSection(NamedTuple):
     title: str
     items: tuple[RenderedItem, ...]
 
 
-class RenderedChecklist(BaseModel):
+class RenderedChecklist(NamedTuple):
     """A checklist with conditions applied and values filled in for one plan."""
 
-    model_config = ConfigDict(frozen=True)
     title: str
     sheet: str
     sections: tuple[RenderedSection, ...]
 
 
-class Step(BaseModel):
+class Step(NamedTuple):
     """One step of the sequence, with the woman's values filled in."""
 
-    model_config = ConfigDict(frozen=True)
     id: str
     phase: str
     title: str
@@ -51,17 +59,15 @@ class Step(BaseModel):
     basis: str = ""
 
 
-class GeneratedBy(BaseModel):
-    model_config = ConfigDict(frozen=True)
+class GeneratedBy(NamedTuple):
     tool: str
     version: str
     rules_version: str
 
 
-class Change(BaseModel):
+class Change(NamedTuple):
     """One difference between an earlier and a later assessment of the same woman."""
 
-    model_config = ConfigDict(frozen=True)
     kind: str  # "identity", "level", "finding", "factor", "equipment", "dose", "oxygenation"
     what: str
     before: str
@@ -69,10 +75,9 @@ class Change(BaseModel):
     danger: float  # > 0: the later plan is more dangerous on this count; < 0: less; 0: neither
 
 
-class Comparison(BaseModel):
+class Comparison(NamedTuple):
     """What changed since an earlier assessment, the most dangerous changes first."""
 
-    model_config = ConfigDict(frozen=True)
     earlier_sha256: str
     earlier_assessed_on: str | None
     later_assessed_on: str | None
@@ -81,10 +86,9 @@ class Comparison(BaseModel):
     changes: tuple[Change, ...]
 
 
-class Plan(BaseModel):
+class Plan(NamedTuple):
     """Everything a renderer shows. Renderers format; they never compute."""
 
-    model_config = ConfigDict(frozen=True)
     generated_by: GeneratedBy
     input_sha256: str
     assessment: Assessment
@@ -105,3 +109,36 @@ class Plan(BaseModel):
     def dose(self, drug: str) -> Dose:
         """The computed dose of one drug."""
         return next(d for d in self.doses if d.drug == drug)
+
+
+def plain(value: Any) -> Any:
+    """JSON-ready data: each record as an object (field order kept), each tuple as a
+    list, the assessment as pydantic writes it in JSON mode."""
+    if isinstance(value, tuple):
+        fields = getattr(value, "_fields", None)
+        if fields is None:
+            return [plain(v) for v in value]
+        return {name: plain(v) for name, v in zip(fields, value, strict=True)}
+    if isinstance(value, list):
+        return [plain(v) for v in value]
+    if isinstance(value, dict):
+        return {k: plain(v) for k, v in value.items()}
+    if isinstance(value, BaseModel):
+        return value.model_dump(mode="json")
+    return value
+
+
+@cache
+def _plan_adapter() -> TypeAdapter[Plan]:
+    from pydantic import TypeAdapter
+
+    return TypeAdapter(Plan)
+
+
+def plan_from_data(data: Any) -> Plan:
+    """A saved JSON plan read back, every field checked against the model.
+
+    Raises pydantic's ``ValidationError`` on anything that is not a plan of this
+    version (a missing or unknown field, a wrong type).
+    """
+    return _plan_adapter().validate_python(data)

@@ -18,7 +18,7 @@ from typing import Any
 
 from pydantic_core import to_json
 
-from .plan_model import Plan
+from .plan_model import Plan, plain
 
 # Python and pydantic-core write floats alike from 1e-4 up to (not including) 1e16;
 # below, Python writes 2.5e-05 where pydantic-core writes 0.000025 (measured over
@@ -35,33 +35,50 @@ def _odd(number: float) -> bool:
     return number != 0.0 and not _FLOAT_SMALLEST <= abs(number) < _FLOAT_LARGEST
 
 
-_NESTED = frozenset({dict, list, tuple})
+_SCALARS = frozenset({str, int, bool, type(None)})
 
 
 def _sorted(value: Any) -> Any:
-    """A copy with every object's keys in sorted order; raises _OddFloat at odd floats.
+    """Plain data with every object's keys in sorted order; raises _OddFloat at odd floats.
 
-    Written out by hand, a loop for objects and one for arrays (no call per plain
-    value): a plan has about a thousand values.
+    Takes dicts, lists, tuples, the plan's records (named tuples) and pydantic
+    models (the assessment). Written out by hand, one loop for objects and one for
+    arrays (no call per plain value): a plan has about a thousand values.
     """
-    if type(value) is dict:
-        out: dict[str, Any] = {}
-        for k in sorted(value):
-            v = value[k]
-            if type(v) in _NESTED:
+    kind = type(value)
+    if kind is dict:
+        pairs: Any = value.items()
+    elif kind is list or kind is tuple:
+        items: list[Any] = []
+        for v in value:
+            if type(v) in _SCALARS:
+                pass
+            elif type(v) is float:
+                if _odd(v):
+                    raise _OddFloat
+            else:
                 v = _sorted(v)
-            elif type(v) is float and _odd(v):
+            items.append(v)
+        return items
+    elif hasattr(kind, "_fields"):  # one of the plan's records
+        pairs = zip(kind._fields, value, strict=True)
+    else:
+        return _sorted(plain(value))
+    out: dict[str, Any] = {}
+    for k, v in sorted(pairs, key=_key):
+        if type(v) in _SCALARS:
+            pass
+        elif type(v) is float:
+            if _odd(v):
                 raise _OddFloat
-            out[k] = v
-        return out
-    items: list[Any] = []
-    for v in value:
-        if type(v) in _NESTED:
+        else:
             v = _sorted(v)
-        elif type(v) is float and _odd(v):
-            raise _OddFloat
-        items.append(v)
-    return items
+        out[k] = v
+    return out
+
+
+def _key(pair: tuple[str, Any]) -> str:
+    return pair[0]
 
 
 def standard_json(data: Any) -> str:
@@ -70,16 +87,16 @@ def standard_json(data: Any) -> str:
 
 
 def dumps(data: Any) -> str:
-    """``standard_json(data)``, byte for byte, but fast for plan-shaped data."""
-    if type(data) is not dict:
-        return standard_json(data)
+    """``standard_json(plain(data))``, byte for byte, but fast for plan-shaped data."""
+    if type(data) is not dict and not hasattr(type(data), "_fields"):
+        return standard_json(plain(data))
     try:
         fast = to_json(_sorted(data), indent=2)
     except (_OddFloat, ValueError):  # or text that is not valid Unicode, a huge integer
-        return standard_json(data)
+        return standard_json(plain(data))
     return fast.decode("utf-8") + "\n"
 
 
 def render_json(plan: Plan) -> str:
     """Sorted keys, two-space indent, trailing newline: same plan, same bytes."""
-    return dumps(plan.model_dump(mode="json"))
+    return dumps(plan)

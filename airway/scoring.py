@@ -10,8 +10,7 @@ shown as a probability.
 from __future__ import annotations
 
 import math
-
-from pydantic import BaseModel, ConfigDict
+from typing import NamedTuple
 
 from .assessment import Assessment
 from .body import BodySize
@@ -54,10 +53,8 @@ INDEPENDENCE_NOTE = (
 )
 
 
-class FactorResult(BaseModel):
+class FactorResult(NamedTuple):
     """One factor as found in this assessment."""
-
-    model_config = ConfigDict(frozen=True)
 
     id: str
     label: str
@@ -74,14 +71,12 @@ class FactorResult(BaseModel):
     prepares: str
 
 
-class Risk(BaseModel):
+class Risk(NamedTuple):
     """The combined airway-difficulty estimate."""
-
-    model_config = ConfigDict(frozen=True)
 
     level: int
     label: str
-    index: float
+    index: float  # type: ignore[assignment]  # shadows tuple.index, never called
     index_level: int  # what the index alone gives, before overrides
     overrides: tuple[str, ...]
     factors: tuple[FactorResult, ...]

@@ -41,7 +41,7 @@ def test_sequence_order_and_values_filled_in() -> None:
     ]
     assert [ph for ph in dict.fromkeys(phases)] == order
     t = p.equipment.tracheal_tube_mm
-    text = json.dumps([s.model_dump() for s in p.steps])
+    text = json.dumps([s._asdict() for s in p.steps])
     assert f"{t.first:.1f} mm" in text and f"size {p.equipment.supraglottic_size:g}" in text
     assert f"{p.dose('sugammadex').dose_mg_low:g} mg" in text
 
