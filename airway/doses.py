@@ -6,7 +6,6 @@ Where sources disagree on the scalar, the dose carries the alternatives.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Literal, NamedTuple
 
 from .body import BodySize
@@ -51,8 +50,7 @@ CONTINUITY_EVIDENCE = Evidence(
 )
 
 
-@dataclass(frozen=True)
-class Drug:
+class Drug(NamedTuple):
     """One catalogued drug: mg/kg range, scalars, concentration, evidence."""
 
     name: str

@@ -15,7 +15,7 @@ The library never prints and never exits; the CLI decides what the user sees.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 
 class AirwayError(Exception):
@@ -24,8 +24,7 @@ class AirwayError(Exception):
     exit_code = 1
 
 
-@dataclass(frozen=True)
-class Problem:
+class Problem(NamedTuple):
     """One thing wrong with an input: where, what was given, what is allowed."""
 
     where: str

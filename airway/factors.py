@@ -25,8 +25,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
-from typing import Literal
+from typing import Literal, NamedTuple
 
 from .assessment import Assessment
 from .body import BodySize
@@ -58,8 +57,7 @@ PLATELETS_LOW_10E9 = 70.0  # SOAP 2021 consensus threshold for neuraxial block, 
 LARGE_BREASTS_RATIO = 1.5
 
 
-@dataclass(frozen=True)
-class Reading:
+class Reading(NamedTuple):
     """What a factor found in one assessment."""
 
     present: bool | None  # None: not assessed
@@ -70,8 +68,7 @@ class Reading:
 Reader = Callable[[Assessment, BodySize], Reading]
 
 
-@dataclass(frozen=True)
-class Factor:
+class Factor(NamedTuple):
     """One catalogued risk factor."""
 
     id: str

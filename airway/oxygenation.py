@@ -17,7 +17,6 @@ uncertainty, never a guarantee; the plan says so.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
 from typing import NamedTuple
 
 from .assessment import Assessment
@@ -135,8 +134,7 @@ UNCERTAINTY = (
 )
 
 
-@dataclass(frozen=True)
-class Physiology:
+class Physiology(NamedTuple):
     """The model's inputs for one woman in one scenario."""
 
     frc_ml: float
@@ -216,8 +214,7 @@ def physiology(
     )
 
 
-@dataclass(frozen=True)
-class Course:
+class Course(NamedTuple):
     """What the model predicts for one scenario."""
 
     seconds_to_95: float | None  # None: not reached within the horizon
@@ -372,7 +369,7 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         (
             "poor_preoxygenation",
             f"poor pre-oxygenation (end-tidal O2 {FEO2_POOR:g})",
-            replace(base, feo2=FEO2_POOR),
+            base._replace(feo2=FEO2_POOR),
         ),
         (
             "nasal_low_flow",

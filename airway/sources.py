@@ -20,8 +20,7 @@ A test fails if any constant names a source id that is not registered here.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Literal
+from typing import Literal, NamedTuple
 
 Basis = Literal["published", "from_memory", "common_practice", "project_rule"]
 
@@ -42,8 +41,7 @@ SHORT_BASIS_LABEL: dict[str, str] = {
 }
 
 
-@dataclass(frozen=True)
-class Source:
+class Source(NamedTuple):
     """A citable source."""
 
     id: str
@@ -51,8 +49,7 @@ class Source:
     citation: str
 
 
-@dataclass(frozen=True)
-class Evidence:
+class Evidence(NamedTuple):
     """Where a number comes from and how firmly it stands."""
 
     source: str
