@@ -356,6 +356,8 @@ def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
 
 def _fill(text: str, plan: Plan | None, front_of_neck_tube_mm: float) -> str:
     """Put values in place; plan values need a plan, unit values never do."""
+    if "{{" not in text:  # most items hold no value
+        return text
 
     def value(match: re.Match[str]) -> str:
         name = match["name"]

@@ -247,7 +247,9 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     cv = 0.0
     for _ in range(30):  # fixed point for Ca with shunt
         ca = (1 - p.shunt) * cc + p.shunt * cv
-        cv = max(0.0, ca - vo2 / q)
+        last, cv = cv, max(0.0, ca - vo2 / q)
+        if cv == last:  # reached: every further round gives the same value
+            break
     pool = cv * p.blood_volume_l  # mL O2 held in the mixed pool
     t95 = t90 = t80 = None
     points: list[tuple[int, float]] = []

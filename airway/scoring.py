@@ -90,31 +90,54 @@ def level_for_index(index: float) -> int:
     return 1 + sum(index >= t for t in LEVEL_THRESHOLDS)
 
 
-def _evaluate(factor: Factor, assessment: Assessment, body: BodySize) -> FactorResult:
+class _Fixed(NamedTuple):
+    """What a factor's result says whatever the assessment, worked out once."""
+
+    log_weight: float  # what one unit of a present finding adds to the index
+    source_short: str
+    evidence: str
+
+
+def _fixed(factor: Factor) -> _Fixed:
+    return _Fixed(
+        log_weight=factor.log_weight,
+        source_short=SOURCES[factor.evidence.source].short,
+        evidence=factor.evidence.describe(),
+    )
+
+
+# The catalogue with each factor's fixed parts: a clinic list scores thousands of women.
+_SCORED: tuple[tuple[Factor, _Fixed], ...] = tuple((f, _fixed(f)) for f in CATALOGUE)
+
+
+def _evaluate(
+    factor: Factor, fixed: _Fixed, assessment: Assessment, body: BodySize
+) -> FactorResult:
     reading = factor.read(assessment, body)
+    present = reading.present
     contribution = 0.0
-    if reading.present and factor.role == "difficulty":
-        contribution = factor.log_weight * reading.units
+    if present and factor.role == "difficulty":
+        contribution = round(fixed.log_weight * reading.units, 4)
     return FactorResult(
         id=factor.id,
         label=factor.label,
         role=factor.role,
         kind=factor.kind,
-        present=reading.present,
+        present=present,
         weight=factor.weight,
-        contribution=round(contribution, 4),
-        detail=reading.detail if reading.present else "",
+        contribution=contribution,
+        detail=reading.detail if present else "",
         source=factor.evidence.source,
-        source_short=SOURCES[factor.evidence.source].short,
+        source_short=fixed.source_short,
         basis=factor.evidence.basis,
-        evidence=factor.evidence.describe(),
+        evidence=fixed.evidence,
         prepares=factor.prepares,
     )
 
 
 def score(assessment: Assessment, body: BodySize) -> Risk:
     """Evaluate every catalogued factor and combine them into a :class:`Risk`."""
-    results = tuple(_evaluate(f, assessment, body) for f in CATALOGUE)
+    results = tuple(_evaluate(f, fixed, assessment, body) for f, fixed in _SCORED)
     index = round(sum(r.contribution for r in results), 4)
     overrides = tuple(r.label for r in results if r.role == "override" and r.present)
     index_level = level_for_index(index)

@@ -58,8 +58,14 @@ class Evidence(NamedTuple):
 
     def describe(self) -> str:
         """One line for a clinician: short citation and basis."""
-        text = source_label(self.source, self.basis)
-        return f"{text}; {self.note}" if self.note else text
+        text = _DESCRIBED.get(self)
+        if text is None:  # the registry never changes: each line is worked out once
+            text = source_label(self.source, self.basis)
+            text = _DESCRIBED[self] = f"{text}; {self.note}" if self.note else text
+        return text
+
+
+_DESCRIBED: dict[Evidence, str] = {}
 
 
 # Pseudo-sources whose name already says what the basis says.
