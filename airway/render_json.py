@@ -42,30 +42,23 @@ def _sorted(value: Any) -> Any:
     """Plain data with every object's keys in sorted order; raises _OddFloat at odd floats.
 
     Takes dicts, lists, tuples, the plan's records (named tuples) and pydantic
-    models (the assessment). Written out by hand, one loop for objects and one for
-    arrays (no call per plain value): a plan has about a thousand values.
+    models (the assessment). Written out by hand, one loop over the values of an
+    object or an array (no call per plain value): a plan has about a thousand.
     """
     kind = type(value)
+    keys: list[str] | None = None
     if kind is dict:
-        pairs: Any = value.items()
+        keys = sorted(value)
+        values = [value[k] for k in keys]
     elif kind is list or kind is tuple:
-        items: list[Any] = []
-        for v in value:
-            if type(v) in _SCALARS:
-                pass
-            elif type(v) is float:
-                if _odd(v):
-                    raise _OddFloat
-            else:
-                v = _sorted(v)
-            items.append(v)
-        return items
+        values = value
     elif hasattr(kind, "_fields"):  # one of the plan's records
-        pairs = zip(kind._fields, value, strict=True)
+        keys, order = _ORDER.get(kind) or _order(kind)
+        values = [value[i] for i in order]
     else:
         return _sorted(plain(value))
-    out: dict[str, Any] = {}
-    for k, v in sorted(pairs, key=_key):
+    out: list[Any] = []
+    for v in values:
         if type(v) in _SCALARS:
             pass
         elif type(v) is float:
@@ -73,12 +66,18 @@ def _sorted(value: Any) -> Any:
                 raise _OddFloat
         else:
             v = _sorted(v)
-        out[k] = v
-    return out
+        out.append(v)
+    return out if keys is None else dict(zip(keys, out, strict=True))
 
 
-def _key(pair: tuple[str, Any]) -> str:
-    return pair[0]
+# For each kind of record: its field names in sorted order, and where each one sits.
+_ORDER: dict[type, tuple[list[str], list[int]]] = {}
+
+
+def _order(kind: Any) -> tuple[list[str], list[int]]:
+    order = sorted(range(len(kind._fields)), key=kind._fields.__getitem__)
+    _ORDER[kind] = ([kind._fields[i] for i in order], order)
+    return _ORDER[kind]
 
 
 def standard_json(data: Any) -> str:
