@@ -10,7 +10,6 @@ A long list is planned in parallel, one process per core, in chunks of rows.
 
 from __future__ import annotations
 
-import json
 import multiprocessing
 import os
 import sys
@@ -29,6 +28,7 @@ from .errors import OutputExistsError
 from .loading import read_text_file
 from .output import write_atomic, write_group_atomic
 from .plan import assessment_digest, build_plan
+from .plan_model import saved_object
 from .render_json import render_json
 
 SUMMARY_CSV = "summary.csv"
@@ -68,10 +68,10 @@ def _still_matches(out: Path, row: Row, pdf: bool) -> bool:
     """For resume: the row's outputs exist, are complete, and came from this row."""
     assert row.assessment is not None
     try:
-        saved = json.loads((out / f"{row.id}.json").read_text("utf-8"))
-    except (OSError, ValueError):
+        saved = saved_object((out / f"{row.id}.json").read_bytes())
+    except OSError:
         return False
-    if saved.get("input_sha256") != assessment_digest(row.assessment):
+    if saved is None or saved.get("input_sha256") != assessment_digest(row.assessment):
         return False
     if pdf:
         try:

@@ -8,7 +8,6 @@ other rules is marked. Pure apart from :func:`load_plans`, which reads files.
 
 from __future__ import annotations
 
-import json
 from dataclasses import dataclass
 from datetime import date
 from pathlib import Path
@@ -18,7 +17,7 @@ from pydantic import ValidationError
 from .decision import SHORT, by_category_text
 from .oxygenation import minutes_label
 from .plan import RULES_VERSION
-from .plan_model import Plan, plan_from_data
+from .plan_model import Plan, plan_from_data, saved_object
 
 DEFAULT_MAX_AGE_DAYS = 14  # project rule: a clinic plan older than two weeks is checked again
 SKIPPED = ("summary",)  # the clinic summary lives in the same folder
@@ -44,7 +43,10 @@ def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
         if path.stem in SKIPPED:
             continue
         try:
-            plans.append((path.stem, plan_from_data(json.loads(path.read_text("utf-8")))))
+            data = saved_object(path.read_bytes())
+            if data is None:
+                raise ValueError("not a JSON object")
+            plans.append((path.stem, plan_from_data(data)))
         except (OSError, ValueError, ValidationError):
             skipped.append(f"{path.name}: not a plan this version can read; left off the board")
     return plans, skipped

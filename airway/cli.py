@@ -9,6 +9,7 @@ from __future__ import annotations
 import copy
 import gc
 import json
+import os
 import sys
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
@@ -16,7 +17,7 @@ from datetime import date
 from enum import StrEnum
 from importlib import resources
 from pathlib import Path
-from typing import TYPE_CHECKING, Annotated
+from typing import TYPE_CHECKING, Annotated, NoReturn
 
 import typer
 
@@ -778,7 +779,24 @@ def main() -> None:
     # memory; the library itself never changes the collector.
     gc.disable()
     share_adapters()
-    _app_for(sys.argv[1:])(prog_name="airway")
+    try:
+        _app_for(sys.argv[1:])(prog_name="airway")
+    except Exception as exc:  # bad input never gets here: it exits 2 with its message
+        _internal_error(exc)
+
+
+def _internal_error(exc: Exception) -> NoReturn:
+    """A fault in airway itself: one plain message and exit 1, not a traceback on the
+    screen of someone about to anaesthetise. The exception's text is left out, since
+    it may hold what was typed (her identifiers); AIRWAY_TRACEBACK=1 shows it all."""
+    if os.environ.get("AIRWAY_TRACEBACK"):
+        raise exc
+    sys.stderr.write(
+        f"airway: internal error ({type(exc).__name__}): a fault in airway, not in what was "
+        "entered. No file is left half-written. Use the printed trolley sheets and local "
+        "guidelines; set AIRWAY_TRACEBACK=1 to see the details and report them.\n"
+    )
+    sys.exit(1)
 
 
 def _app_for(args: list[str]) -> typer.Typer:

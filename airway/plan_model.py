@@ -13,6 +13,7 @@ assessment, unit files, and a saved plan read back (:func:`plan_from_data`).
 
 from __future__ import annotations
 
+import json
 from functools import cache
 from typing import TYPE_CHECKING, Any, NamedTuple
 
@@ -126,6 +127,17 @@ def plain(value: Any) -> Any:
     if isinstance(value, BaseModel):
         return value.model_dump(mode="json")
     return value
+
+
+def saved_object(text: str | bytes) -> dict[str, Any] | None:
+    """The JSON object in a saved plan file, or None when the file holds anything else:
+    text that is not JSON or not UTF-8, an array or a number, or nesting far too deep
+    to be a plan (which the standard library's decoder meets with RecursionError)."""
+    try:
+        data = json.loads(text)
+    except (ValueError, RecursionError):
+        return None
+    return data if isinstance(data, dict) else None
 
 
 @cache

@@ -14,7 +14,7 @@ import re
 from dataclasses import dataclass
 
 from .plan import RULES_VERSION
-from .plan_model import Plan
+from .plan_model import Plan, saved_object
 
 _SUBJECT = re.compile(
     rb"airway (?P<version>[^;)]+); rules (?P<rules>[^;)]+); input sha256 (?P<sha>[0-9a-f]{64})"
@@ -34,11 +34,13 @@ def saved_identity(data: bytes) -> tuple[str, str, str] | None:
         if m is None:
             return None
         return m["version"].decode(), m["rules"].decode(), m["sha"].decode()
+    saved = saved_object(data)
+    if saved is None:
+        return None
     try:
-        saved = json.loads(data.decode("utf-8"))
         g = saved["generated_by"]
         return str(g["version"]), str(g["rules_version"]), str(saved["input_sha256"])
-    except (ValueError, KeyError, TypeError):
+    except (KeyError, TypeError):
         return None
 
 
@@ -59,7 +61,7 @@ def verify(data: bytes, current: Plan) -> Verdict:
     if not findings and not data.startswith(b"%PDF"):
         from .render_json import render_json
 
-        if json.loads(data) != json.loads(render_json(current)):
+        if saved_object(data) != json.loads(render_json(current)):
             findings.append("values differ from the plan recomputed now (edited after saving?)")
     if findings:
         return Verdict(False, tuple(findings))

@@ -40,6 +40,33 @@ def _ward(tmp_path: Path) -> Path:
     return folder
 
 
+def test_files_that_are_not_plans_are_left_off_with_a_note(runner, tmp_path: Path) -> None:
+    """Nesting far too deep for the decoder, an array, a null, bytes that are not UTF-8 and
+    a plan with a field missing are each named and left off; the board is still made."""
+    folder = _ward(tmp_path)
+    (folder / "deep.json").write_text("[" * 100_000 + "]" * 100_000)
+    (folder / "array.json").write_text("[1, 2]")
+    (folder / "null.json").write_text("null")
+    (folder / "binary.json").write_bytes(b"\xff\xfe\x00")
+    partial = json.loads((folder / "W1.json").read_text())
+    del partial["risk"]
+    (folder / "partial.json").write_text(json.dumps(partial))
+    plans, skipped = load_plans(folder)
+    assert [n for n, _ in plans] == ["W1", "W2", "W3", "W4"]
+    names = {s.split(":")[0] for s in skipped}
+    assert names == {
+        "deep.json",
+        "array.json",
+        "null.json",
+        "binary.json",
+        "partial.json",
+        "notes.json",
+    }
+    out = tmp_path / "board.pdf"
+    r = runner.invoke(app, ["board", str(folder), "-o", str(out), "--today", "2026-12-02"])
+    assert r.exit_code == 0 and "deep.json" in r.stderr and r.exception is None
+
+
 def test_rows_sorted_and_warned(tmp_path: Path) -> None:
     plans, skipped = load_plans(_ward(tmp_path))
     assert [n for n, _ in plans] == ["W1", "W2", "W3", "W4"]

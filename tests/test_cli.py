@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import gc
 import json
 import subprocess
 import sys
@@ -306,3 +307,29 @@ def test_whole_app_for_anything_but_a_command_name() -> None:
 
     for args in ([], ["--help"], ["--version"], ["quik"], ["-h", "quick"]):
         assert _app_for(args) is app
+
+
+def _broken(*_args: object, **_kwargs: object) -> None:
+    raise RuntimeError("Ann Example, record A-1")  # as if a fault echoed what was typed
+
+
+def test_a_fault_in_airway_gives_one_plain_message_and_exit_1(monkeypatch, capsys) -> None:
+    """Not bad input but a fault in airway itself: no traceback on the screen, nothing of
+    what was typed in the message, exit 1; AIRWAY_TRACEBACK=1 lets the exception through."""
+    from airway import cli
+
+    monkeypatch.setattr("airway.plan.build_plan", _broken)
+    monkeypatch.setattr("sys.argv", ["airway", "quick", "--weight-kg", "90"])
+    monkeypatch.delenv("AIRWAY_TRACEBACK", raising=False)
+    try:
+        with pytest.raises(SystemExit) as stop:
+            cli.main()
+        assert stop.value.code == 1
+        err = capsys.readouterr().err
+        assert "internal error (RuntimeError)" in err and "Traceback" not in err
+        assert "Ann Example" not in err and "A-1" not in err
+        monkeypatch.setenv("AIRWAY_TRACEBACK", "1")
+        with pytest.raises(RuntimeError):
+            cli.main()
+    finally:
+        gc.enable()  # main() turns the collector off for its one-shot process

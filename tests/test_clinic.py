@@ -152,6 +152,24 @@ def test_rerun_refused_force_replaces_resume_keeps_and_redoes_changed(runner, tm
     assert runner.invoke(app, ["batch", str(f), "--out", str(out), "--force"]).exit_code == 0
 
 
+@pytest.mark.parametrize(
+    "found",
+    ["[1, 2]", "null", "[" * 100_000 + "]" * 100_000, "\udcff"],
+    ids=["array", "null", "deep", "not-utf8"],
+)
+def test_resume_redoes_a_row_whose_saved_plan_is_not_a_plan(runner, tmp_path: Path, found):
+    """An array, a null, nesting far too deep for the decoder, bytes that are not UTF-8:
+    none is a finished plan, so --resume plans the row again (no traceback)."""
+    f = _list(tmp_path, "A1,,80,165,1,\n")
+    out = tmp_path / "out"
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out)]).exit_code == 0
+    good = (out / "A1.json").read_bytes()
+    (out / "A1.json").write_bytes(found.encode("utf-8", "surrogateescape"))
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out), "--resume"])
+    assert r.exit_code == 0 and "0 kept" in r.stderr, r.output
+    assert (out / "A1.json").read_bytes() == good
+
+
 def test_pdfs_in_parallel_and_summary_pdf(runner, tmp_path: Path) -> None:
     f = _list(tmp_path, "".join(f"P{i},,{60 + 5 * i},165,{1 + i % 4},\n" for i in range(6)))
     out = tmp_path / "out"

@@ -59,3 +59,18 @@ def test_not_a_plan_and_missing_file(runner, tmp_path: Path) -> None:
     assert r.exit_code == 1 and "not a plan made by airway" in r.stdout
     r = runner.invoke(app, ["verify", str(tmp_path / "none.pdf"), str(EXAMPLES[0])])
     assert r.exit_code == 2 and "none.pdf" in r.stderr
+
+
+@pytest.mark.parametrize(
+    "found",
+    ["[" * 100_000 + "]" * 100_000, '{"a":' * 50_000 + "1" + "}" * 50_000],
+    ids=["arrays", "objects"],
+)
+def test_nesting_too_deep_is_not_a_plan(runner, tmp_path: Path, found: str) -> None:
+    """The standard library's decoder gives up on such nesting with RecursionError: the
+    file is reported as not a plan, with no traceback."""
+    other = tmp_path / "deep.json"
+    other.write_text(found)
+    r = runner.invoke(app, ["verify", str(other), str(EXAMPLES[0])])
+    assert r.exit_code == 1 and "not a plan made by airway" in r.stdout
+    assert r.exception is None or isinstance(r.exception, SystemExit)
