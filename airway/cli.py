@@ -125,7 +125,8 @@ def _errors() -> Iterator[None]:
         typer.echo(f"airway: {exc}", err=True)
         raise typer.Exit(exc.exit_code) from None
     except OSError as exc:
-        typer.echo(f"airway: {exc.filename or ''}: {exc.strerror or exc}", err=True)
+        where = f"{exc.filename}: " if exc.filename else ""
+        typer.echo(f"airway: {where}{exc.strerror or exc}", err=True)
         raise typer.Exit(1) from None
 
 

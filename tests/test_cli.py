@@ -333,3 +333,15 @@ def test_a_fault_in_airway_gives_one_plain_message_and_exit_1(monkeypatch, capsy
             cli.main()
     finally:
         gc.enable()  # main() turns the collector off for its one-shot process
+
+
+def test_an_os_error_without_a_file_name_reads_cleanly(capsys) -> None:
+    """A closed pipe (airway plan FILE | head) has no file name: no stray colon."""
+    import typer
+
+    from airway.cli import _errors
+
+    with pytest.raises(typer.Exit) as stop, _errors():
+        raise BrokenPipeError(32, "Broken pipe")
+    assert stop.value.exit_code == 1
+    assert capsys.readouterr().err == "airway: Broken pipe\n"
