@@ -628,7 +628,8 @@ def batch(
     planned = len(result.rows) - len(result.bad_rows)
     typer.echo(
         f"planned {planned} of {len(result.rows)} rows into {out} "
-        f"({result.written} files written, {result.kept} kept)",
+        f"({result.written} {'file' if result.written == 1 else 'files'} written, "
+        f"{result.kept} kept)",
         err=True,
     )
     if result.bad_rows:

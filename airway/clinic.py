@@ -64,6 +64,12 @@ def read_clinic_list(text: str, source: str) -> tuple[Row, ...]:
     text = text.removeprefix("\ufeff")
     reader = csv.reader(io.StringIO(text, newline=""))
     header = [h.strip() for h in next(reader, [])]
+    if len(header) == 1:
+        for mark, name in ((";", "semicolons"), ("\t", "tabs")):
+            if mark in header[0]:
+                # Spreadsheets set to a decimal comma export lists this way.
+                hint = f"columns are separated by {name}; save the list as comma-separated CSV"
+                raise InputError(source, [Problem("row 1", hint)])
     problems = []
     if ID_COLUMN not in header:
         problems.append(Problem("row 1", f"no {ID_COLUMN!r} column"))

@@ -187,3 +187,14 @@ def test_example_clinic_list_has_200_rows_six_marked_bad() -> None:
     assert len(bad) == 6
     levels = {build_plan(r.assessment).risk.level for r in rows[:60] if r.assessment}
     assert levels == {1, 2, 3, 4}
+
+
+@pytest.mark.parametrize(("mark", "name"), [(";", "semicolons"), ("\t", "tabs")])
+def test_a_list_exported_with_another_separator_says_so(runner, tmp_path, mark, name) -> None:
+    """Spreadsheets set to a decimal comma write ';' between columns: say what to change
+    instead of calling the whole header one unknown column."""
+    f = _list(tmp_path, f"A1{mark}80\n", header=f"id{mark}patient.weight_kg\n")
+    r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "out")])
+    assert r.exit_code == 2
+    assert f"separated by {name}; save the list as comma-separated CSV" in r.stderr
+    assert "unknown column" not in r.stderr
