@@ -24,7 +24,7 @@ from pathlib import Path
 from .checklists import Checklist
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
 from .equipment import Catalogue
-from .errors import OutputExistsError
+from .errors import InputError, OutputExistsError, Problem
 from .loading import read_text_file
 from .output import write_atomic, write_group_atomic
 from .plan import assessment_digest, build_plan
@@ -194,6 +194,8 @@ def run_batch(
         OutputExistsError: ``out`` holds outputs and neither ``force`` nor ``resume``.
     """
     rows = read_list_file(list_path)
+    if out.exists() and not out.is_dir():
+        raise InputError(str(out), [Problem("--out", "is a file; give a folder for the plans")])
     out.mkdir(parents=True, exist_ok=True)
     _remove_stale_temporaries(out)
     names = [n for r in rows for n in _outputs(r, pdf)] + [SUMMARY_CSV]

@@ -63,7 +63,12 @@ def read_clinic_list(text: str, source: str) -> tuple[Row, ...]:
     """
     text = text.removeprefix("\ufeff")
     reader = csv.reader(io.StringIO(text, newline=""))
-    header = [h.strip() for h in next(reader, [])]
+    try:
+        lines = list(reader)
+    except csv.Error as exc:  # a cell longer than the csv module's limit, for one
+        problem = Problem(f"row {reader.line_num}", f"cannot be read as CSV ({exc})")
+        raise InputError(source, [problem]) from None
+    header = [h.strip() for h in (lines[0] if lines else [])]
     if len(header) == 1:
         for mark, name in ((";", "semicolons"), ("\t", "tabs")):
             if mark in header[0]:
@@ -84,7 +89,7 @@ def read_clinic_list(text: str, source: str) -> tuple[Row, ...]:
         raise InputError(source, problems)
     rows: list[Row] = []
     seen: set[str] = set()
-    for number, cells in enumerate(reader, start=2):
+    for number, cells in enumerate(lines[1:], start=2):
         if not any(c.strip() for c in cells):
             continue  # blank lines between entries are common in spreadsheets
         cells = cells + [""] * (len(header) - len(cells))

@@ -198,3 +198,19 @@ def test_a_list_exported_with_another_separator_says_so(runner, tmp_path, mark, 
     assert r.exit_code == 2
     assert f"separated by {name}; save the list as comma-separated CSV" in r.stderr
     assert "unknown column" not in r.stderr
+
+
+def test_a_cell_too_long_for_the_csv_reader_is_bad_input(runner, tmp_path: Path) -> None:
+    """Python's csv module stops at 131,072 characters a cell: exit 2 naming the row."""
+    f = _list(tmp_path, "A1,,80,165,1,\n" + "A2," + "x" * 200_000 + ",80,165,1,\n")
+    r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "out")])
+    assert r.exit_code == 2 and "row 3: cannot be read as CSV" in r.stderr
+    assert "xxxx" not in r.stderr
+
+
+def test_out_naming_a_file_is_bad_input(runner, tmp_path: Path) -> None:
+    f = _list(tmp_path, "A1,,80,165,1,\n")
+    (tmp_path / "plans").write_text("not a folder")
+    r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "plans")])
+    assert r.exit_code == 2 and "is a file; give a folder" in r.stderr
+    assert (tmp_path / "plans").read_text() == "not a folder"
