@@ -71,6 +71,12 @@ class ChecklistError(AirwayError, ValueError):
         super().__init__(f"{where}: {message}")
 
 
+class OutputPathError(AirwayError):
+    """An output name that cannot be a file: a folder, or in a folder that does not exist."""
+
+    exit_code = 2
+
+
 class OutputExistsError(AirwayError):
     """The output file exists and ``--force`` was not given."""
 

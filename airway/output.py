@@ -16,7 +16,7 @@ import time
 from collections.abc import Sequence
 from pathlib import Path
 
-from .errors import OutputExistsError
+from .errors import OutputExistsError, OutputPathError
 
 # A temporary left by a killed run is removed by the next write of the same file once
 # it is this old; a younger one may belong to a process still writing (project rule).
@@ -48,10 +48,15 @@ def write_atomic(
     reads the folder and would make a long list slow in its square.
 
     Raises:
+        OutputPathError: ``path`` is a folder, or its folder does not exist.
         OutputExistsError: ``path`` exists and ``force`` is False.
         OSError: the folder cannot be written.
     """
     dest = Path(path)
+    if dest.is_dir():
+        raise OutputPathError(f"{dest} is a folder; give a file name")
+    if not dest.parent.is_dir():
+        raise OutputPathError(f"{dest}: there is no folder {dest.parent}")
     if dest.exists() and not force:
         raise OutputExistsError(str(dest))
     if sweep_stale:

@@ -345,3 +345,16 @@ def test_an_os_error_without_a_file_name_reads_cleanly(capsys) -> None:
         raise BrokenPipeError(32, "Broken pipe")
     assert stop.value.exit_code == 1
     assert capsys.readouterr().err == "airway: Broken pipe\n"
+
+
+def test_an_output_name_that_cannot_be_a_file_is_bad_input(runner, tmp_path: Path) -> None:
+    """A folder given as the PDF, or a file in a folder that does not exist: exit 2 with
+    what is wrong (it was a confusing 'already exists' or a temporary's name)."""
+    r = runner.invoke(app, ["quick", "--weight-kg", "80", "--pdf", str(tmp_path), "--force"])
+    assert r.exit_code == 2 and "is a folder; give a file name" in r.stderr
+    missing = tmp_path / "no" / "plan.pdf"
+    r = runner.invoke(app, ["quick", "--weight-kg", "80", "--pdf", str(missing)])
+    assert r.exit_code == 2 and f"there is no folder {missing.parent}" in r.stderr
+    r = runner.invoke(app, ["plan", str(EXAMPLES[0]), "-o", str(tmp_path)])
+    assert r.exit_code == 2 and "is a folder" in r.stderr
+    assert list(tmp_path.iterdir()) == []
