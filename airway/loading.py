@@ -19,7 +19,7 @@ from .errors import InputError, Problem
 
 _RANGE_ERRORS = ("less_than_equal", "greater_than_equal", "less_than", "greater_than")
 _MESSAGES = {
-    "extra_forbidden": "unknown key; check its spelling (see `airway schema`)",
+    "extra_forbidden": "unknown key; check its spelling",
     "missing": "required but missing",
 }
 
@@ -63,6 +63,8 @@ def problems_from_validation(
         message = _MESSAGES.get(kind, err["msg"])
         if kind in _RANGE_ERRORS and model is not None:
             message = _field_range(model, err["loc"]) or message
+        if kind == "extra_forbidden" and model is Assessment:
+            message += " (see `airway schema`)"  # the schema describes assessments only
         if kind == "literal_error":
             message = "must be one of " + err.get("ctx", {}).get("expected", "the listed values")
         # Identifiers are never echoed back: messages can end up in logs.

@@ -358,3 +358,17 @@ def test_an_output_name_that_cannot_be_a_file_is_bad_input(runner, tmp_path: Pat
     r = runner.invoke(app, ["plan", str(EXAMPLES[0]), "-o", str(tmp_path)])
     assert r.exit_code == 2 and "is a folder" in r.stderr
     assert list(tmp_path.iterdir()) == []
+
+
+def test_an_unknown_key_points_to_the_schema_only_for_an_assessment(runner, tmp_path) -> None:
+    """`airway schema` describes assessments; a unit file's unknown key must not send the
+    reader there."""
+    bad = tmp_path / "a.toml"
+    bad.write_text("[patient]\nweight_kg = 80\nheigth_cm = 160\n")
+    r = runner.invoke(app, ["plan", str(bad)])
+    assert r.exit_code == 2 and "unknown key; check its spelling (see `airway schema`)" in r.stderr
+    config = tmp_path / "airway.toml"
+    config.write_text("checklist = 'ours'\n")
+    r = runner.invoke(app, ["plan", str(EXAMPLES[0]), "--config", str(config)])
+    assert r.exit_code == 2 and "checklist: unknown key; check its spelling" in r.stderr
+    assert "airway schema" not in r.stderr
