@@ -57,6 +57,8 @@ def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow
     assessed = plan.assessment.assessed_on
     if assessed is None:
         warnings.append("no assessment date: reassess")
+    elif assessed > today:  # a mistyped year, most often
+        warnings.append("dated after today: check the date, reassess")
     elif (today - assessed).days > max_age_days:
         warnings.append(f"{(today - assessed).days} days old: reassess")
     if plan.generated_by.rules_version != RULES_VERSION:
@@ -84,3 +86,8 @@ def board_rows(
     """One row per plan, highest airway level first, then by name."""
     rows = [board_row(name, plan, today, max_age_days) for name, plan in plans]
     return sorted(rows, key=lambda r: (-r.level, r.name))
+
+
+def women(count: int) -> str:
+    """'1 woman', '12 women'."""
+    return f"{count} {'woman' if count == 1 else 'women'}"

@@ -703,7 +703,7 @@ def board(
 
     Example: airway board plans -o board.pdf
     """
-    from .board import board_rows, load_plans
+    from .board import board_rows, load_plans, women
     from .output import write_atomic
     from .render_board import render_board_pdf
 
@@ -720,7 +720,7 @@ def board(
         write_atomic(output, pdf, force=force)
     for note in notes:
         typer.echo(f"airway: {note}", err=True)
-    typer.echo(f"wrote {output} ({len(rows)} women)", err=True)
+    typer.echo(f"wrote {output} ({women(len(rows))})", err=True)
 
 
 @command(cls=GroupedCommand)

@@ -5,7 +5,7 @@ from __future__ import annotations
 from reportlab.platypus import Spacer
 
 from . import __version__
-from .board import BoardRow
+from .board import BoardRow, women
 from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
 from .render_pdf import (
     FONT_BOLD,
@@ -68,15 +68,16 @@ def render_board_pdf(
         if r.level >= 3:
             grid.setStyle([("LINEBEFORE", (0, i), (0, i), 3, WARN)])
     story: list[object] = [
-        _p(f"Labour ward airway board, printed {today}: {len(rows)} women", st["h1"]),
+        _p(f"Labour ward airway board, printed {today}: {women(len(rows))}", st["h1"]),
         _p(f"{CAUTION_AID} {CAUTION_REASSESS}", st["caution"]),
         Spacer(0, 3),
         grid,
         Spacer(0, 4),
         _p(
             f"Highest airway level first (a bar marks levels 3 and 4). 'Check' marks a plan "
-            f"older than {max_age_days} days, without an assessment date, or made under "
-            f"rules other than {RULES_VERSION}: reassess and replan before relying on it. "
+            f"older than {max_age_days} days, dated after today, without an assessment date, "
+            f"or made under rules other than {RULES_VERSION}: reassess and replan before "
+            "relying on it. "
             "SpO2 90% is the predicted minutes of apnoea (model estimate); the full plan, "
             "with its sources, is in each woman's plan file.",
             small,

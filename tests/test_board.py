@@ -98,3 +98,23 @@ def test_board_bad_date_and_missing_folder_exit_2(runner, tmp_path: Path) -> Non
     out = str(tmp_path / "b.pdf")
     assert runner.invoke(app, ["board", str(tmp_path), "-o", out, "--today", "2/12"]).exit_code == 2
     assert runner.invoke(app, ["board", str(tmp_path / "no"), "-o", out]).exit_code == 2
+
+
+def test_a_plan_dated_after_today_is_marked(tmp_path: Path) -> None:
+    """A year typed wrong (2062 for 2026) would otherwise hide an old plan for decades."""
+    folder = tmp_path / "ward"
+    folder.mkdir()
+    _save(folder, "F1", assessed_on="2062-11-30")
+    plans, _ = load_plans(folder)
+    rows = board_rows(plans, date(2026, 12, 2))
+    assert rows[0].warnings == ("dated after today: check the date, reassess",)
+
+
+def test_one_woman_is_one_woman(runner, tmp_path: Path) -> None:
+    folder = tmp_path / "ward"
+    folder.mkdir()
+    _save(folder, "W1", assessed_on="2026-11-30")
+    out = tmp_path / "board.pdf"
+    r = runner.invoke(app, ["board", str(folder), "-o", str(out), "--today", "2026-12-02"])
+    assert r.exit_code == 0 and "(1 woman)" in r.stderr
+    assert ": 1 woman" in " ".join(PdfReader(out).pages[0].extract_text().split())
