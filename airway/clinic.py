@@ -29,6 +29,11 @@ IGNORED_COLUMNS = ("comment",)
 # Safe as a file name on every common system, and not a word the folder uses itself.
 SAFE_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")
 RESERVED_IDS = frozenset({"summary", "board"})
+# Names Windows keeps for devices, with any extension: "CON.json" cannot be a file there
+# (common practice, from the Windows file-naming rules).
+WINDOWS_DEVICES = frozenset(
+    {"con", "prn", "aux", "nul"} | {f"{p}{n}" for p in ("com", "lpt") for n in range(1, 10)}
+)
 
 
 @dataclass(frozen=True)
@@ -49,6 +54,8 @@ def _check_id(value: str, seen: set[str]) -> str | None:
             "is not a safe file name: 1-64 letters, digits, '.', '_' or '-', starting with a "
             "letter or digit (and not 'summary' or 'board')"
         )
+    if value.split(".")[0].lower() in WINDOWS_DEVICES:
+        return "is a name Windows keeps for a device (CON, PRN, AUX, NUL, COM1-9, LPT1-9)"
     if value.lower() in seen:
         return "is used by an earlier row; ids must be unique"
     return None

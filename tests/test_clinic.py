@@ -90,6 +90,14 @@ def test_unsafe_or_repeated_ids_refused_and_never_echoed(tmp_path: Path) -> None
     assert "unique" in text
 
 
+def test_ids_windows_keeps_for_devices_are_refused() -> None:
+    """A clinic may run the list on Windows, where CON.json or com1.json cannot be a file."""
+    body = "CON,,80,165,1,\nnul,,80,165,1,\nCom1.x,,80,165,1,\nCONSULT1,,80,165,1,\n"
+    rows = read_clinic_list(HEADER + body, "list.csv")
+    assert [r.assessment is None for r in rows] == [True, True, True, False]
+    assert all("Windows keeps for a device" in str(r.problems[0]) for r in rows[:3])
+
+
 def test_header_problems_stop_the_list(runner, tmp_path: Path) -> None:
     f = _list(tmp_path, "A1,,80,165,2,\n", header="id,patient.wieght_kg\n")
     r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "out")])
