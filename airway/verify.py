@@ -4,7 +4,9 @@ A JSON plan and a PDF plan both carry the tool version, the rules version and
 the SHA-256 of the assessment they came from (the PDF in its document
 Subject). :func:`verify` recomputes the plan from the assessment and says
 whether the saved one was made from that assessment, under the current rules,
-and (for JSON) whether every value still agrees. Pure: bytes and plan in.
+and (for JSON) whether every value still agrees. A plan saved by an earlier
+version lacks the fields added since (the contract adds fields, never renames
+them): that is said, not taken for an edit. Pure: bytes and plan in.
 """
 
 from __future__ import annotations
@@ -12,6 +14,7 @@ from __future__ import annotations
 import json
 import re
 from dataclasses import dataclass
+from typing import Any
 
 from .plan import RULES_VERSION
 from .plan_model import Plan, saved_object
@@ -44,12 +47,35 @@ def saved_identity(data: bytes) -> tuple[str, str, str] | None:
         return None
 
 
+def _compare(saved: Any, now: Any, where: str, added: list[str], changed: list[str]) -> None:
+    """Walk a saved plan beside the plan made now. A field the saved plan lacks goes in
+    ``added`` (a later airway adds fields and never renames one); any other difference,
+    a field the plan made now does not have included, goes in ``changed``."""
+    if type(saved) is dict and type(now) is dict:
+        for key, value in saved.items():
+            if key in now:
+                _compare(value, now[key], f"{where}{key}.", added, changed)
+            else:
+                changed.append(f"{where}{key}")
+        added += [f"{where}{key}" for key in now if key not in saved]
+    elif type(saved) is list and type(now) is list and len(saved) == len(now):
+        for n, (old, new) in enumerate(zip(saved, now, strict=True)):
+            _compare(old, new, f"{where}{n}.", added, changed)
+    elif saved != now:
+        changed.append(where.rstrip(".") or "(the whole plan)")
+
+
+def _listed(paths: list[str], most: int = 3) -> str:
+    more = f" and {len(paths) - most} more" if len(paths) > most else ""
+    return ", ".join(paths[:most]) + more
+
+
 def verify(data: bytes, current: Plan) -> Verdict:
     """Compare a saved plan (JSON or PDF bytes) with the plan its assessment gives now."""
     found = saved_identity(data)
     if found is None:
         return Verdict(False, ("not a plan made by airway (no version, rules or digest in it)",))
-    _version, rules, sha = found
+    version, rules, sha = found
     findings = []
     if sha != current.input_sha256:
         findings.append(
@@ -58,11 +84,27 @@ def verify(data: bytes, current: Plan) -> Verdict:
         )
     if rules != RULES_VERSION:
         findings.append(f"made under rules {rules}; the current rules are {RULES_VERSION}: replan")
+    notes = []
     if not findings and not data.startswith(b"%PDF"):
         from .render_json import render_json
 
-        if saved_object(data) != json.loads(render_json(current)):
-            findings.append("values differ from the plan recomputed now (edited after saving?)")
+        added: list[str] = []
+        changed: list[str] = []
+        now = json.loads(render_json(current))
+        now["generated_by"]["version"] = version  # which release wrote it is no edit
+        _compare(saved_object(data), now, "", added, changed)
+        if added and version == current.generated_by.version:
+            changed += added  # this very version writes them: taken out after saving
+        if changed:
+            findings.append(
+                "values differ from the plan recomputed now (edited after saving?): "
+                + _listed(changed)
+            )
+        elif added:
+            notes.append(
+                f"made by airway {version}, which did not yet write {_listed(added)}; "
+                "every value it holds agrees"
+            )
     if findings:
         return Verdict(False, tuple(findings))
-    return Verdict(True, (f"matches: this assessment, rules {RULES_VERSION}",))
+    return Verdict(True, (f"matches: this assessment, rules {RULES_VERSION}", *notes))
