@@ -44,11 +44,13 @@ def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
             continue
         try:
             data = saved_object(path.read_bytes())
-            if data is None:
-                raise ValueError("not a JSON object")
-            plans.append((path.stem, plan_from_data(data)))
-        except (OSError, ValueError, ValidationError):
+            plan = None if data is None else plan_from_data(data)
+        except (OSError, ValidationError):
+            plan = None
+        if plan is None:
             skipped.append(f"{path.name}: not a plan this version can read; left off the board")
+        else:
+            plans.append((path.stem, plan))
     return plans, skipped
 
 

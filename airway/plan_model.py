@@ -1,8 +1,9 @@
 """The plan as data: what :func:`airway.plan.build_plan` returns and every renderer reads.
 
-Models only, no logic: the checklist filler (:mod:`airway.checklists`) and the
-plan builder (:mod:`airway.plan`) both import from here, so imports run one
-way: ``plan`` -> ``checklists`` -> ``plan_model``.
+Models, and the few helpers that turn them into JSON data and back; no planning
+logic: the checklist filler (:mod:`airway.checklists`) and the plan builder
+(:mod:`airway.plan`) both import from here, so imports run one way: ``plan`` ->
+``checklists`` -> ``plan_model``.
 
 What the engine computes is held in typed named tuples: immutable, built without
 validation (the engine's own values, checked by the tests for their declared
