@@ -3,9 +3,12 @@
 from __future__ import annotations
 
 import json
+from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
 import pytest
+from typer.testing import Result
 
 from airway.cli import app
 
@@ -36,38 +39,43 @@ def test_a_plan_from_another_assessment_is_caught(runner, saved, kind: str) -> N
     assert r.exit_code == 1 and "different assessment" in r.stdout
 
 
-def test_a_plan_made_under_older_rules_is_caught(runner, saved) -> None:
+def _verify_edited(runner, saved, edit: Callable[[dict[str, Any]], object]) -> Result:
+    """Edit the saved JSON plan in place, then verify it against its assessment."""
     data = json.loads(saved["json"].read_text())
-    data["generated_by"]["rules_version"] = "2025.1.1"
+    edit(data)
     saved["json"].write_text(json.dumps(data))
-    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    return runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+
+
+def test_a_plan_made_under_older_rules_is_caught(runner, saved) -> None:
+    r = _verify_edited(runner, saved, lambda d: d["generated_by"].update(rules_version="2025.1.1"))
     assert r.exit_code == 1 and "rules 2025.1.1" in r.stdout and "replan" in r.stdout
 
 
 def test_an_edited_value_is_caught(runner, saved) -> None:
-    data = json.loads(saved["json"].read_text())
-    data["equipment"]["tracheal_tube_mm"]["first"] = 8.0
-    saved["json"].write_text(json.dumps(data))
-    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    r = _verify_edited(
+        runner, saved, lambda d: d["equipment"]["tracheal_tube_mm"].update(first=8.0)
+    )
     assert r.exit_code == 1 and "values differ" in r.stdout
     assert "equipment.tracheal_tube_mm.first" in r.stdout  # says where, never the value
 
 
-def _older(saved: dict[str, Path], version: str) -> None:
-    """The saved plan as an airway that did not yet write two fields would have saved it."""
-    data = json.loads(saved["json"].read_text())
-    data["generated_by"]["version"] = version
-    for dose in data["doses"]:
-        del dose["rule"]
-    del data["oxygenation"]["basis"]
-    saved["json"].write_text(json.dumps(data))
+def _older(version: str) -> Callable[[dict[str, Any]], None]:
+    """The plan as an airway that did not yet write two fields would have saved it."""
+
+    def edit(data: dict[str, Any]) -> None:
+        data["generated_by"]["version"] = version
+        for dose in data["doses"]:
+            del dose["rule"]
+        del data["oxygenation"]["basis"]
+
+    return edit
 
 
 def test_a_plan_from_an_earlier_version_without_later_fields_matches(runner, saved) -> None:
     """The contract adds fields and never renames one: a plan saved before a field was
     added is not an edited plan, and the fields it lacks are named."""
-    _older(saved, "0.0.9")
-    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    r = _verify_edited(runner, saved, _older("0.0.9"))
     assert r.exit_code == 0 and "matches" in r.stdout
     assert "made by airway 0.0.9, which did not yet write doses.0.rule" in r.stdout
 
@@ -75,17 +83,19 @@ def test_a_plan_from_an_earlier_version_without_later_fields_matches(runner, sav
 def test_a_field_missing_from_a_plan_of_this_version_is_an_edit(runner, saved) -> None:
     from airway import __version__
 
-    _older(saved, __version__)
-    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    r = _verify_edited(runner, saved, _older(__version__))
     assert r.exit_code == 1 and "values differ" in r.stdout and "doses.0.rule" in r.stdout
 
 
 def test_a_field_the_plan_does_not_have_is_an_edit(runner, saved) -> None:
-    data = json.loads(saved["json"].read_text())
-    data["equipment"]["note"] = "added by hand"
-    saved["json"].write_text(json.dumps(data))
-    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
+    r = _verify_edited(runner, saved, lambda d: d["equipment"].update(note="added by hand"))
     assert r.exit_code == 1 and "equipment.note" in r.stdout and "added by hand" not in r.stdout
+
+
+def test_a_plan_from_another_release_under_the_same_rules_matches(runner, saved) -> None:
+    """A new release with the same rules must not make every saved plan look edited."""
+    r = _verify_edited(runner, saved, lambda d: d["generated_by"].update(version="0.0.9"))
+    assert r.exit_code == 0 and "matches" in r.stdout and "did not yet write" not in r.stdout
 
 
 def test_not_a_plan_and_missing_file(runner, tmp_path: Path) -> None:
@@ -110,12 +120,3 @@ def test_nesting_too_deep_is_not_a_plan(runner, tmp_path: Path, found: str) -> N
     r = runner.invoke(app, ["verify", str(other), str(EXAMPLES[0])])
     assert r.exit_code == 1 and "not a plan made by airway" in r.stdout
     assert r.exception is None or isinstance(r.exception, SystemExit)
-
-
-def test_a_plan_from_another_release_under_the_same_rules_matches(runner, saved) -> None:
-    """A new release with the same rules must not make every saved plan look edited."""
-    data = json.loads(saved["json"].read_text())
-    data["generated_by"]["version"] = "0.0.9"
-    saved["json"].write_text(json.dumps(data))
-    r = runner.invoke(app, ["verify", str(saved["json"]), str(EXAMPLES[0])])
-    assert r.exit_code == 0 and "matches" in r.stdout and "did not yet write" not in r.stdout
