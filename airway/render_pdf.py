@@ -737,12 +737,14 @@ def _layout(
     brief = _checklist(lists["brief"], col, st, dense) if "brief" in lists else []
     after = _checklist(lists["after"], col, st, dense) if "after" in lists else []
     top, top_h = head
-    reference = [
-        *_equipment(plan, col, st, dense),
-        *_oxygen(plan, col, st, curve=not dense),
-        *_decision(plan, st, dense),
-        *_doses(plan, st),
+    sections = [
+        _equipment(plan, col, st, dense),
+        _oxygen(plan, col, st, curve=not dense),
+        _decision(plan, st, dense),
+        _doses(plan, st),
     ]
+    reference = [f for s in sections for f in s]
+    room = columns * (usable - top_h - 4)
     templates = [
         _template("first", size, top_h, columns),
         _template("columns", size, 0, columns),
@@ -751,17 +753,31 @@ def _layout(
     if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL:
         steps = _steps(plan, col, st, full=False)
         flowing = [*reference, *brief, *steps, *after, *_closing(plan, st)]
-        room = columns * (usable - top_h - 4)
         # A column break wastes part of a line or a table row: keep some slack.
         fits = _height(flowing, col, stop_above=FIT_SLACK * room) <= FIT_SLACK * room
         return templates, [*story, *flowing], fits
-    # Higher levels: page 2 opens with every action of the sequence, full width.
+    # Higher levels: page 2 opens with every action of the sequence, full width. The
+    # reference sections that do not fit under a tall head (many findings) follow the
+    # actions there, whole, rather than spill onto a page of their own.
     steps = _steps(plan, width, st, full=True)
     steps_h = min(usable, _height(steps, width) + 2)
     templates.append(_template("actions", size, steps_h))
-    story += [*reference, NextPageTemplate("actions"), PageBreak(), *steps, FrameBreak()]
-    story += [NextPageTemplate("columns"), *brief, *after, *_closing(plan, st)]
+    first, later = _sections_that_fit(sections, col, FIT_SLACK * room)
+    story += [*first, NextPageTemplate("actions"), PageBreak(), *steps, FrameBreak()]
+    story += [NextPageTemplate("columns"), *later, *brief, *after, *_closing(plan, st)]
     return templates, story, True
+
+
+def _sections_that_fit(
+    sections: list[list[object]], width: float, room: float
+) -> tuple[list[object], list[object]]:
+    """The sections, in order and whole, that fit in ``room``, and the rest."""
+    used = 0.0
+    for n, section in enumerate(sections):
+        used += _height(section, width, stop_above=room - used)
+        if used > room:
+            return [f for s in sections[:n] for f in s], [f for s in sections[n:] for f in s]
+    return [f for s in sections for f in s], []
 
 
 def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
@@ -820,9 +836,11 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
         return buf.getvalue()
 
     pdf = build(dense=False)
-    if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL and pages[-1] > 1:
-        # Levels 1 and 2 belong on one page: drop the curve (its numbers are in the table).
-        # The first build has drawn the head's flowables; lay out fresh ones.
+    one_page = plan.risk.level <= ONE_PAGE_UP_TO_LEVEL
+    if pages[-1] > (1 if one_page else 2):
+        # Levels 1 and 2 belong on one page, 3 and 4 on two: drop the curve (its numbers
+        # are in the table) and set three columns. The first build has drawn the head's
+        # flowables; lay out fresh ones.
         head = make_head()
         pdf = build(dense=True)
     return pdf

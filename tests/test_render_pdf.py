@@ -250,6 +250,60 @@ def test_never_more_than_two_pages_on_letter() -> None:
         assert len(PdfReader(io.BytesIO(render_plan_pdf(plan, "letter"))).pages) <= 2
 
 
+EVERY_FINDING = {
+    "identity": {"name": "W" * 80, "record_number": "9" * 40, "date_of_birth": "1" * 20},
+    "label": "L" * 120,
+    "patient": {"weight_kg": 140, "height_cm": 150, "age_years": 42, "in_labour": True},
+    "airway": {
+        "mallampati": 4,
+        "upper_lip_bite": 3,
+        "thyromental_cm": 5,
+        "sternomental_cm": 10,
+        "mouth_opening_cm": 2.5,
+        "neck_circumference_cm": 50,
+        "neck_movement": "fixed",
+        "jaw_protrusion": "limited",
+        "short_neck": True,
+        "receding_mandible": True,
+        "protruding_incisors": True,
+        "large_breasts": True,
+    },
+    "history": {
+        "intubation": "failed",
+        "difficult_mask_ventilation": True,
+        "obstructive_sleep_apnoea": True,
+        "snoring": True,
+    },
+    "preeclampsia": {
+        "status": "with_severe_features",
+        "signs": [
+            "stridor",
+            "voice_change",
+            "facial_oedema",
+            "tongue_swelling",
+            "new_snoring",
+            "breathless_lying_flat",
+        ],
+        "platelets_10e9_per_l": 60,
+    },
+    "context": {"urgency_category": 1, "anaesthetist": "junior", "aspiration_risk": "high"},
+}
+
+
+@pytest.mark.parametrize("paper", ["A4", "letter"])
+def test_every_finding_at_once_still_two_pages_with_the_actions_on_page_2(paper) -> None:
+    """The woman who most needs a clear plan has the tallest head (every factor, every
+    preparation, the longest identifiers): the reference sections that do not fit under
+    it follow the actions on page 2 instead of spilling onto a page of their own."""
+    import io
+
+    plan = build_plan(make(**EVERY_FINDING))
+    reader = PdfReader(io.BytesIO(render_plan_pdf(plan, paper)))
+    assert len(reader.pages) == 2
+    page_2 = " ".join(reader.pages[1].extract_text().split())
+    assert page_2.startswith("If it goes wrong: the sequence")
+
+
 def test_line_breaks_reused_only_where_they_change_nothing(monkeypatch) -> None:
     """Wrapping each paragraph once per width prints the same bytes as wrapping every time.
 
