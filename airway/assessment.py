@@ -207,7 +207,7 @@ class Identity(_Model):
     name: _printable_text(80) | None = None  # type: ignore[valid-type]
     record_number: _printable_text(40) | None = None  # type: ignore[valid-type]
     date_of_birth: _printable_text(20) | None = Field(  # type: ignore[valid-type]
-        default=None, description="As written"
+        default=None, description="Date of birth, as written"
     )
 
 

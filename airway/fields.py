@@ -8,6 +8,7 @@ value the model validates (ranges and choices are checked by the model).
 
 from __future__ import annotations
 
+import re
 import types
 import typing
 from dataclasses import dataclass
@@ -26,6 +27,46 @@ LIST_SEPARATOR = ";"
 NOT_ASSESSED = ""  # an empty cell or a blank answer
 YES = ("yes", "y", "true", "1")
 NO = ("no", "n", "false", "0")
+
+
+# What each finding is called when asked for (airway assess) or listed (the column
+# reference): plain words a clinician uses at the bedside.
+LABELS = {
+    "identity.name": "Her name, printed on her own plan only",
+    "identity.record_number": "Her record number, printed on her own plan only",
+    "assessed_on": "Date of this assessment",
+    "patient.weight_kg": "Current weight",
+    "patient.height_cm": "Height",
+    "patient.age_years": "Age",
+    "patient.gestation_weeks": "Gestation",
+    "patient.in_labour": "In labour now",
+    "patient.booking_weight_kg": "Weight at booking",
+    "patient.haemoglobin_g_per_l": "Latest haemoglobin",
+    "airway.mallampati": "Modified Mallampati class",
+    "airway.upper_lip_bite": "Upper lip bite class",
+    "airway.mouth_opening_cm": "Inter-incisor gap",
+    "airway.thyromental_cm": "Thyromental distance",
+    "airway.sternomental_cm": "Sternomental distance",
+    "airway.jaw_protrusion": "Jaw protrusion",
+    "airway.neck_movement": "Neck movement",
+    "airway.neck_circumference_cm": "Neck circumference",
+    "airway.short_neck": "Short neck",
+    "airway.receding_mandible": "Receding mandible",
+    "airway.protruding_incisors": "Protruding upper incisors",
+    "airway.large_breasts": "Large breasts",
+    "history.intubation": "Previous intubation",
+    "history.difficult_mask_ventilation": "Previous difficult mask ventilation",
+    "history.obstructive_sleep_apnoea": "Obstructive sleep apnoea",
+    "history.snoring": "Snores",
+    "preeclampsia.status": "Pre-eclampsia",
+    "preeclampsia.signs": "Signs of airway oedema now",
+    "preeclampsia.platelets_10e9_per_l": "Latest platelet count",
+    "context.urgency_category": "Caesarean urgency category (blank in clinic)",
+    "context.anaesthetist": "Anaesthetist who will intubate",
+    "context.surgical_complexity": "Expected surgical complexity",
+    "context.aspiration_risk": "Aspiration risk",
+    "context.regional_alternative": "Regional or awake technique instead",
+}
 
 
 @dataclass(frozen=True)
@@ -170,6 +211,21 @@ def nest(values: dict[str, object]) -> dict[str, Any]:
     return out
 
 
+def _meaning(spec: FieldSpec) -> str:
+    """The model's description without the unit and range the 'allowed' column gives,
+    or the finding's name where the model has no description (or, for a yes/no
+    finding, one written for TOML's true/false)."""
+    text = re.sub(r", in [^;,]+; [0-9.]+-[0-9.]+$", "", spec.description)
+    if not text or spec.kind == "yes/no":
+        return LABELS.get(spec.path, spec.name.replace("_", " "))
+    return text
+
+
+def _cell(text: str) -> str:
+    """Text for a Markdown table cell: a bare '|' would start a new column."""
+    return text.replace("|", "\\|")
+
+
 def column_reference() -> str:
     """The Markdown table of clinic-list columns, for the README."""
     lines = [
@@ -178,8 +234,8 @@ def column_reference() -> str:
         "| `id` | letters, digits, `.`, `_`, `-` (1-64; never a name) | names the row's outputs |",
     ]
     for f in field_specs():
-        meaning = f.description + (" (required)" if f.required else "")
-        lines.append(f"| `{f.path}` | {f.allowed()} | {meaning.strip()} |")
+        meaning = _meaning(f) + (" (required)" if f.required else "")
+        lines.append(f"| `{f.path}` | {_cell(f.allowed())} | {_cell(meaning)} |")
     lines.append("| `comment` | text | ignored: the clinic's own note on the row |")
     return "\n".join(lines) + "\n"
 

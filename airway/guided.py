@@ -17,7 +17,7 @@ from typing import Any
 from pydantic import ValidationError
 
 from .assessment import Assessment
-from .fields import BY_PATH, FieldSpec, nest, parse_text
+from .fields import BY_PATH, LABELS, FieldSpec, nest, parse_text
 from .loading import problems_from_validation
 
 # The examination as it runs: (heading, field paths).
@@ -81,40 +81,6 @@ GROUPS: tuple[tuple[str, tuple[str, ...]], ...] = (
     ),
 )
 
-LABELS = {
-    "assessed_on": "Date of this assessment",
-    "patient.weight_kg": "Current weight",
-    "patient.height_cm": "Height",
-    "patient.age_years": "Age",
-    "patient.gestation_weeks": "Gestation",
-    "patient.in_labour": "In labour now",
-    "patient.booking_weight_kg": "Weight at booking",
-    "patient.haemoglobin_g_per_l": "Latest haemoglobin",
-    "airway.mallampati": "Modified Mallampati class",
-    "airway.upper_lip_bite": "Upper lip bite class",
-    "airway.mouth_opening_cm": "Inter-incisor gap",
-    "airway.thyromental_cm": "Thyromental distance",
-    "airway.sternomental_cm": "Sternomental distance",
-    "airway.jaw_protrusion": "Jaw protrusion",
-    "airway.neck_movement": "Neck movement",
-    "airway.neck_circumference_cm": "Neck circumference",
-    "airway.short_neck": "Short neck",
-    "airway.receding_mandible": "Receding mandible",
-    "airway.protruding_incisors": "Protruding upper incisors",
-    "airway.large_breasts": "Large breasts",
-    "history.intubation": "Previous intubation",
-    "history.difficult_mask_ventilation": "Previous difficult mask ventilation",
-    "history.obstructive_sleep_apnoea": "Obstructive sleep apnoea",
-    "history.snoring": "Snores",
-    "preeclampsia.status": "Pre-eclampsia",
-    "preeclampsia.signs": "Signs of airway oedema now",
-    "preeclampsia.platelets_10e9_per_l": "Latest platelet count",
-    "context.urgency_category": "Caesarean urgency category (blank in clinic)",
-    "context.anaesthetist": "Anaesthetist who will intubate",
-    "context.surgical_complexity": "Expected surgical complexity",
-    "context.aspiration_risk": "Aspiration risk",
-    "context.regional_alternative": "Regional or awake technique instead",
-}
 
 Ask = Callable[[str], str]  # shows a prompt, returns one line; raises EOFError at end of input
 Say = Callable[[str], None]

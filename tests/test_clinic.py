@@ -222,3 +222,22 @@ def test_out_naming_a_file_is_bad_input(runner, tmp_path: Path) -> None:
     r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "plans")])
     assert r.exit_code == 2 and "is a file; give a folder" in r.stderr
     assert (tmp_path / "plans").read_text() == "not a folder"
+
+
+def test_column_reference_is_a_table_of_three_columns_in_every_row() -> None:
+    """A bare '|' in a cell ('yes | no') starts a new column: the README's table read
+    'no' as the meaning. Parsed here by markdown-it-py as GitHub would."""
+    from markdown_it import MarkdownIt
+
+    tokens = MarkdownIt("commonmark").enable("table").parse(column_reference())
+    cells: list[int] = []
+    for token in tokens:
+        if token.type == "tr_open":
+            cells.append(0)
+        elif token.type in ("th_open", "td_open"):
+            cells[-1] += 1
+    assert len(cells) == len(field_specs()) + 3  # header, id, every field, comment
+    assert set(cells) == {3}
+    rows = {line.split("|")[1].strip(" `"): line for line in column_reference().splitlines()}
+    labour = rows["patient.in_labour"]
+    assert "yes \\| no" in labour and "In labour now" in labour
