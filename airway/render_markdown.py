@@ -14,6 +14,17 @@ def _esc(text: str) -> str:
     return text.replace("\\", "\\\\").replace("|", "\\|").replace("<", "&lt;")
 
 
+# What a name or label typed by the clinic must not become: emphasis, a link, code,
+# struck-out text, an entity, a table cell, the end of a heading. Each is shown as typed.
+_INLINE = {c: "\\" + c for c in "`*_[]~|#"}
+
+
+def _typed(text: str) -> str:
+    """Text typed by the clinic (her identifiers, the label), shown exactly as typed."""
+    plain = text.replace("\\", "\\\\").replace("&", "&amp;").replace("<", "&lt;")
+    return "".join(_INLINE.get(c, c) for c in plain)
+
+
 def render_markdown(plan: Plan) -> str:
     """The full plan as GitHub-flavoured Markdown."""
     r, b, e, d = plan.risk, plan.body, plan.equipment, plan.decision
@@ -21,12 +32,13 @@ def render_markdown(plan: Plan) -> str:
     t = e.tracheal_tube_mm
     out: list[str] = []
     add = out.append
-    title = "# Airway plan" + (f": {_esc(plan.assessment.label)}" if plan.assessment.label else "")
+    label = plan.assessment.label
+    title = "# Airway plan" + (f": {_typed(label)}" if label else "")
     add(title)
     add("")
     who = plan.assessment.identity
     ids = [
-        f"{k}: {_esc(v)}"
+        f"{k}: {_typed(v)}"
         for k, v in (("Name", who.name), ("Record", who.record_number), ("Born", who.date_of_birth))
         if v
     ]
