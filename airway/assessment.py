@@ -40,16 +40,31 @@ Grade3 = Literal["low", "moderate", "high"]
 # escape, newline...) and the bidirectional embeddings, overrides and isolates, which
 # can make an identifier read differently from what was typed.
 _BIDI_CONTROLS = frozenset("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069")
+# Characters no name, record number or label needs that hide in one: line and paragraph
+# separators (which break the line they sit in), zero-width space, word joiner, the
+# byte-order mark and soft hyphen (invisible), and tag characters. Zero-width joiners
+# and non-joiners stay: some scripts write names with them.
+_INVISIBLE = frozenset("\u2028\u2029\u200b\u2060\ufeff\u00ad")
+
+
+def _refused(ch: str) -> bool:
+    return (
+        unicodedata.category(ch) == "Cc"
+        or ch in _BIDI_CONTROLS
+        or ch in _INVISIBLE
+        or "\U000e0000" <= ch <= "\U000e007f"
+    )
 
 
 def _printable(value: str) -> str:
     for ch in value:
-        if unicodedata.category(ch) == "Cc" or ch in _BIDI_CONTROLS:
+        if _refused(ch):
+            control = unicodedata.category(ch) == "Cc" or ch in _BIDI_CONTROLS
+            kind = "control character" if control else "invisible character"
             raise PydanticCustomError(
                 "control_character",
-                "contains the control character U+{code}; identifiers and labels must be "
-                "plain printable text",
-                {"code": f"{ord(ch):04X}"},
+                "contains the {kind} U+{code}; identifiers and labels must be plain printable text",
+                {"kind": kind, "code": f"{ord(ch):04X}"},
             )
     return value
 

@@ -92,6 +92,28 @@ def test_control_characters_in_identifiers_refused(runner, tmp_path: Path, field
     assert "Ann" not in r.stderr  # identifiers are not echoed back
 
 
+@pytest.mark.parametrize(
+    "char",
+    ["\\u2028", "\\u2029", "\\u200b", "\\u2060", "\\ufeff", "\\u00ad", "\\U000e0041"],
+    ids=["line-sep", "para-sep", "zwsp", "word-joiner", "bom", "soft-hyphen", "tag"],
+)
+def test_invisible_characters_in_identifiers_refused(runner, tmp_path: Path, char) -> None:
+    """'Ann' and 'An<zero-width space>n' look alike and are not the same record; a line
+    separator breaks the plan's title line."""
+    f = tmp_path / "a.toml"
+    f.write_text(f'[identity]\nrecord_number = "A1{char}23"\n[patient]\nweight_kg = 80\n')
+    r = runner.invoke(app, ["plan", str(f)])
+    assert r.exit_code == 2, r.output
+    assert "identity.record_number: contains the invisible character" in r.stderr
+
+
+def test_names_written_with_joiners_still_accepted(runner, tmp_path: Path) -> None:
+    """Zero-width joiners and non-joiners are part of how some scripts write names."""
+    f = tmp_path / "a.toml"
+    f.write_text('[identity]\nname = "Mi\u200cna Ka\u200dr"\n[patient]\nweight_kg = 80\n')
+    assert runner.invoke(app, ["plan", str(f)]).exit_code == 0
+
+
 def test_accented_names_still_accepted(runner, tmp_path: Path) -> None:
     f = tmp_path / "a.toml"
     f.write_text('[identity]\nname = "Zoë Ñúñez-Łąka"\n[patient]\nweight_kg = 80\n')
