@@ -302,7 +302,7 @@ def assess(
     force: ForceOpt = False,
     catalogue: CatalogueOpt = None,
 ) -> None:
-    """Guided entry: each finding asked in turn, as the examination runs.
+    """Guided entry: each finding asked in examination order.
 
     Blank means not assessed; a bad answer is asked again. Ends with the one-screen
     plan; -o saves the assessment for `airway plan`. Ctrl-C saves nothing.

@@ -194,11 +194,18 @@ def held_rule_text(floor_kg: float) -> str:
     )
 
 
+def mg_text(d: Dose) -> str:
+    """'95-142.5 mg' or '1520 mg'."""
+    if d.dose_mg_low == d.dose_mg_high:
+        return f"{d.dose_mg_low:g} mg"
+    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg"
+
+
 def dose_text(d: Dose) -> str:
     """'95-142.5 mg (1.9-2.9 mL)' or '1520 mg (15.2 mL)'."""
     if d.dose_mg_low == d.dose_mg_high:
-        return f"{d.dose_mg_low:g} mg ({d.volume_ml_low:g} mL)"
-    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
+        return f"{mg_text(d)} ({d.volume_ml_low:g} mL)"
+    return f"{mg_text(d)} ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
 
 
 def _weight(body: BodySize, scalar: Scalar) -> float | None:

@@ -11,8 +11,8 @@ from __future__ import annotations
 import textwrap
 
 from .body import BODY_FORMULA_WARNING
-from .decision import DECISION_TITLE, by_category_text
-from .doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text
+from .decision import DECISION_TITLE, SHORT, by_category_text
+from .doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text, mg_text
 from .oxygenation import Oxygenation, minutes_label
 from .plan_model import Plan
 from .scoring import FactorResult, level_heading, thresholds_text
@@ -101,10 +101,18 @@ def _risk(plan: Plan) -> list[str]:
     return lines
 
 
-def _not_assessed(plan: Plan) -> list[str]:
-    if not plan.not_assessed:
+# The one-screen plan names this many findings not assessed, then counts the rest.
+COMPACT_NOT_ASSESSED = 5
+
+
+def _not_assessed(plan: Plan, most: int | None = None) -> list[str]:
+    names = plan.not_assessed
+    if not names:
         return []
-    return _wrap("Not assessed: " + ", ".join(plan.not_assessed) + ".", "  ", "  ")
+    text = ", ".join(names[:most])
+    if most is not None and len(names) > most:
+        text += f" and {len(names) - most} more (see the full plan)"
+    return _wrap(f"Not assessed: {text}.", "  ", "  ")
 
 
 def _bullets(title: str, entries: tuple[str, ...]) -> list[str]:
@@ -275,7 +283,7 @@ def _compact(plan: Plan) -> list[str]:
     prep = [f.label for f in r.factors if f.present and f.prepares and f.role != "override"]
     if prep:
         lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
-    lines += _not_assessed(plan)
+    lines += _not_assessed(plan, most=COMPACT_NOT_ASSESSED)
     lines += _wrap(
         f"TUBES {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm   SUPRAGLOTTIC size "
         f"{e.supraglottic_size:g}   FRONT-OF-NECK {e.front_of_neck_tube_mm:.1f} mm",
@@ -292,10 +300,10 @@ def _compact(plan: Plan) -> list[str]:
     )
     lines.append("DOSES (calculation aid: check and titrate)")
     for dose in plan.doses:
-        name = dose.label.split(" (")[0]
+        name = _drug_name(dose).capitalize()
         scale = f"{SCALAR_SHORT[dose.scalar]} {round(dose.scalar_weight_kg, 1):g} kg"
         lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
-    lines += ["", DECISION_TITLE.upper()]
+    lines.append(DECISION_TITLE.upper())
     lines += _wrap(f"Pre-made decision: {d.headline}")
     for direction in ("proceed", "wake", "neither", "unknown"):
         names = [
@@ -318,7 +326,41 @@ def _compact(plan: Plan) -> list[str]:
         if w != BODY_FORMULA_WARNING:
             lines += _wrap(w, "  ", "! ")
     lines += _wrap(plan.cautions[2], "  ", "! ")
+    return lines + _in_short(plan)
+
+
+def _in_short(plan: Plan) -> list[str]:
+    """The numbers of the first seconds again, last: on a 24-line terminal the top of
+    the one-screen plan has scrolled away by the time the prompt returns."""
+    r, e, d, oxy = plan.risk, plan.equipment, plan.decision, plan.oxygenation
+    t = e.tracheal_tube_mm
+    by_role: dict[str, list[str]] = {}
+    for dose in plan.doses:
+        by_role.setdefault(dose.role, []).append(f"{_drug_name(dose)} {mg_text(dose)}")
+    drugs = [" or ".join(names) for names in by_role.values()]
+    decision = SHORT[d.recommendation]
+    if d.if_category:  # urgency not yet known: 'by urgency category 1 or 2: proceed; ...'
+        decision = by_category_text(d.if_category).replace("if urgency", "by urgency", 1)
+    lines = _wrap(
+        f"IN SHORT: {level_heading(r.level).lower()}; SpO2 90% in "
+        f"{minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)} (model)",
+        "  ",
+        "",
+    )
+    for text in (
+        f"tubes {t.first:.1f} / {t.backup:.1f} / {t.smallest:.1f} mm; supraglottic size "
+        f"{e.supraglottic_size:g}; front-of-neck {e.front_of_neck_tube_mm:.1f} mm",
+        drugs[0],  # induction
+        "; ".join(drugs[1:]),  # neuromuscular block; its reversal
+        f"failed intubation: {decision}",
+    ):
+        lines += _wrap(text)
     return lines
+
+
+def _drug_name(dose: Dose) -> str:
+    """'sugammadex' for 'Sugammadex (immediate reversal)'."""
+    return dose.label.split(" (")[0].lower()
 
 
 def _since(plan: Plan, most: int | None = None) -> list[str]:
