@@ -601,12 +601,32 @@ def _steps(plan: Plan, width: float, st: dict[str, ParagraphStyle], full: bool) 
         skip.add("after the event")
     title = _p("If it goes wrong: the sequence, with her values", st["h2"])
     numbered = [(n, s) for n, s in enumerate(plan.steps, 1) if s.phase not in skip]
+    head = [title, *_skipped_steps_note(plan, skip, small)]
     if full:
         rows: list[list[object]] = [["", "Step", "What to do"]]
         rows += [[str(n), _p(s.title, small), _p(" ".join(s.actions), small)] for n, s in numbered]
-        return [title, _grid(rows, [width * 0.04, width * 0.2, width * 0.76])]
+        return [*head, _grid(rows, [width * 0.04, width * 0.2, width * 0.76])]
     rows = [[str(n), _p(s.summary, small)] for n, s in numbered]
-    return [title, _grid(rows, [width * 0.07, width * 0.93], header=False)]
+    return [*head, _grid(rows, [width * 0.07, width * 0.93], header=False)]
+
+
+# Where a step left out of the printed sequence is found instead.
+STANDS_IN = {"before induction": "the team brief", "after the event": "the after-event list"}
+
+
+def _skipped_steps_note(plan: Plan, skip: set[str], style: ParagraphStyle) -> list[object]:
+    """'Steps 1-7 (before induction) are in the team brief; ...': without it a printed
+    sequence opening at step 8 reads as if its first page were lost."""
+    parts = []
+    for phase, where in STANDS_IN.items():
+        numbers = [n for n, s in enumerate(plan.steps, 1) if s.phase == phase]
+        if phase in skip and numbers:
+            first, last = numbers[0], numbers[-1]
+            which = f"step {first}" if first == last else f"steps {first}-{last}"
+            verb = "is" if first == last else "are"
+            parts.append(f"{which} ({phase}) {verb} in {where}")
+    text = "; ".join(parts) + "."
+    return [_p(text[0].upper() + text[1:], style)] if parts else []
 
 
 def _checklist(

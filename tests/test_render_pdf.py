@@ -329,3 +329,23 @@ def test_line_breaks_reused_only_where_they_change_nothing(monkeypatch) -> None:
     monkeypatch.setattr(render_pdf.Paragraph, "wrap", Plain.wrap)
     plain = [render_plan_pdf(build_plan(a), paper) for a, paper in cases]
     assert cached == plain
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_every_step_of_the_sequence_is_printed_or_said_where_it_is(
+    path: Path, tmp_path: Path
+) -> None:
+    """The printed sequence leaves out the steps the team brief and the after-event list
+    stand in for; a sequence opening at step 8 must say where steps 1-7 went."""
+    plan = build_plan(read_assessment(path))
+    text = _text(render_plan_pdf(plan), tmp_path)
+    sequence = text.split("the sequence, with her values", 1)[1]
+    for n, step in enumerate(plan.steps, 1):
+        if step.phase == "before induction":
+            assert "1-7 (before induction) are in the team brief" in sequence
+            assert "Before induction: team brief" in text
+        elif step.phase == "after the event":
+            assert f"step {n} (after the event) is in the after-event list" in sequence
+            assert "After a difficult or failed airway" in text
+        else:
+            assert f" {n} " in sequence, (n, step.title)
