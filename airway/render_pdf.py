@@ -161,7 +161,62 @@ def _p(text: str, style: ParagraphStyle) -> Paragraph:
     return Paragraph(escape(text), style)
 
 
+CELL_PADDING_PT = 2.0  # left and right of every table cell
+
+
+def _text_width(text: str, bold: bool = False) -> float:
+    """Width in points of one line of table text (the fonts must be registered)."""
+    return float(pdfmetrics.stringWidth(text, FONT_BOLD if bold else FONT, MIN_FONT_PT))
+
+
+def _fitted(cell: object, width: float, bold: bool) -> object:
+    """A plain-text cell wider than its column is wrapped, never drawn into the next."""
+    if isinstance(cell, str) and _text_width(cell, bold) > width - 2 * CELL_PADDING_PT:
+        style = ParagraphStyle(
+            "cell",
+            fontName=FONT_BOLD if bold else FONT,
+            fontSize=MIN_FONT_PT,
+            leading=MIN_FONT_PT * 1.12,
+            textColor=INK,
+        )
+        return Paragraph(escape(cell), style)
+    return cell
+
+
+def _fit_widths(
+    rows: Sequence[Sequence[object]], widths: Sequence[float], header: bool
+) -> list[float]:
+    """Column widths that hold every plain-text cell on one line where they can.
+
+    A column too narrow for its widest plain text ("10" in a narrow step column,
+    "> 20 min") takes the points it lacks from the column with the most to spare;
+    paragraphs wrap, so a column of paragraphs spares all but nothing. Widths that
+    already fit are returned unchanged.
+    """
+    need = [0.0] * len(widths)
+    for r, row in enumerate(rows):
+        for i, cell in enumerate(row):
+            if isinstance(cell, str):
+                need[i] = max(need[i], _text_width(cell, header and r == 0) + 2 * CELL_PADDING_PT)
+    fitted = list(widths)
+    for i, needed in enumerate(need):
+        short = needed - fitted[i]
+        if short <= 0:
+            continue
+        donor = max(range(len(fitted)), key=lambda j: fitted[j] - need[j])
+        give = min(short, fitted[donor] - need[donor]) if donor != i else 0.0
+        if give > 0:
+            fitted[i] += give
+            fitted[donor] -= give
+    return fitted
+
+
 def _grid(rows: Sequence[Sequence[object]], widths: Sequence[float], header: bool = True) -> Table:
+    widths = _fit_widths(rows, widths, header)
+    rows = [
+        [_fitted(cell, w, header and r == 0) for cell, w in zip(row, widths, strict=True)]
+        for r, row in enumerate(rows)
+    ]
     table = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
     style = [
         ("FONTNAME", (0, 0), (-1, -1), FONT),
@@ -171,8 +226,8 @@ def _grid(rows: Sequence[Sequence[object]], widths: Sequence[float], header: boo
         ("LINEBELOW", (0, 0), (-1, -1), 0.25, colors.grey),
         ("TOPPADDING", (0, 0), (-1, -1), 0.3),
         ("BOTTOMPADDING", (0, 0), (-1, -1), 0.9),
-        ("LEFTPADDING", (0, 0), (-1, -1), 2),
-        ("RIGHTPADDING", (0, 0), (-1, -1), 2),
+        ("LEFTPADDING", (0, 0), (-1, -1), CELL_PADDING_PT),
+        ("RIGHTPADDING", (0, 0), (-1, -1), CELL_PADDING_PT),
     ]
     if header:
         style += [("BACKGROUND", (0, 0), (-1, 0), PALE), ("FONTNAME", (0, 0), (-1, 0), FONT_BOLD)]

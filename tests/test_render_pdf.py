@@ -349,3 +349,32 @@ def test_every_step_of_the_sequence_is_printed_or_said_where_it_is(
             assert "After a difficult or failed airway" in text
         else:
             assert f" {n} " in sequence, (n, step.title)
+
+
+def test_no_plain_table_text_is_wider_than_its_column(monkeypatch) -> None:
+    """A number or word drawn past its cell runs into the next one ("> 20 min> 20 min"
+    in the dense layout's oxygen table): every plain-text cell of every table, on both
+    papers and in both layouts, fits its column inside the padding."""
+    import airway.render_pdf as rp
+
+    tables: list[tuple[list, list[float], bool]] = []
+
+    class Recorded(rp.Table):  # type: ignore[misc, name-defined]
+        def __init__(self, rows, colWidths, **kw):  # type: ignore[no-untyped-def]
+            tables.append((rows, list(colWidths), kw.get("repeatRows") == 1))  # header bold
+            super().__init__(rows, colWidths=colWidths, **kw)
+
+    monkeypatch.setattr(rp, "Table", Recorded)
+    cases = list(_level_cases()) + [read_assessment(p) for p in EXAMPLES]
+    for assessment in cases:
+        for paper in ("A4", "letter"):
+            render_plan_pdf(build_plan(assessment), paper)
+    checked = 0
+    for rows, widths, header in tables:
+        for r, row in enumerate(rows):
+            for cell, width in zip(row, widths, strict=True):
+                if isinstance(cell, str):
+                    checked += 1
+                    bold = header and r == 0
+                    assert rp._text_width(cell, bold) <= width - 2 * rp.CELL_PADDING_PT, cell
+    assert checked > 100
