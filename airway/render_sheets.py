@@ -16,6 +16,7 @@ from reportlab.lib import colors
 from reportlab.lib.pagesizes import A3, A4, landscape, portrait
 from reportlab.lib.styles import ParagraphStyle
 from reportlab.lib.units import mm
+from reportlab.pdfbase import pdfmetrics
 from reportlab.platypus import (
     BaseDocTemplate,
     CondPageBreak,
@@ -172,6 +173,35 @@ def _month_grid(width: float, st: dict[str, ParagraphStyle], k: float) -> list:
     return parts
 
 
+# reportlab's default cell padding, left and right; never less than the minimum.
+CELL_PADDING_PT = 6.0
+MIN_CELL_PADDING_PT = 2.0
+
+
+def _measured_widths(
+    rows: list[Sequence[object]], width: float, size: float
+) -> tuple[list[float], float]:
+    """Column widths and the cell padding that keep every line off the rules.
+
+    Each column is as wide as its widest line (the header and the first column in
+    bold); the room left over is shared in proportion. When the lines need more than
+    the width (A4 portrait), the padding shrinks instead, down to a minimum.
+    """
+    text = []
+    for c in range(len(rows[0])):
+        widest = 0.0
+        for r, row in enumerate(rows):
+            font = FONT_BOLD if r == 0 or c == 0 else FONT
+            for line in str(row[c]).split("\n"):
+                widest = max(widest, pdfmetrics.stringWidth(line, font, size))
+        text.append(widest)
+    over = sum(text) + 2 * CELL_PADDING_PT * len(text) - width
+    padding = max(MIN_CELL_PADDING_PT, CELL_PADDING_PT - max(0.0, over) / (2 * len(text)))
+    need = [t + 2 * padding for t in text]
+    spare = max(0.0, width - sum(need))
+    return [n + spare * n / sum(need) for n in need], padding
+
+
 def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) -> list:
     h1, h2 = (f"{h:g}" for h in BAND_HEIGHTS_CM)
     header = [
@@ -197,11 +227,16 @@ def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) 
                 f"{r.sugammadex_mg:g}",
             ]
         )
-    widths = [width * f for f in (0.13, 0.14, 0.19, 0.19, 0.19, 0.16)]
+    widths, padding = _measured_widths(rows, width, BODY_PT_A4 * k)
     table = _table(rows, widths, k, header=True, shade=True)
     table.setStyle(
         TableStyle(
-            [("ALIGN", (1, 0), (-1, -1), "CENTER"), ("FONTNAME", (0, 1), (0, -1), FONT_BOLD)]
+            [
+                ("ALIGN", (1, 0), (-1, -1), "CENTER"),
+                ("FONTNAME", (0, 1), (0, -1), FONT_BOLD),
+                ("LEFTPADDING", (0, 0), (-1, -1), padding),
+                ("RIGHTPADDING", (0, 0), (-1, -1), padding),
+            ]
         )
     )
     notes = [_p("Doses in mg. " + sheet.notes[0], st["body"])]

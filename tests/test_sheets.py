@@ -170,3 +170,35 @@ def test_sheets_have_no_text_under_8_points(kind: str, paper: str) -> None:
     from .test_render_pdf import _font_sizes
 
     assert min(_font_sizes(render_sheet_pdf(_sheet(kind), paper))) >= 8.0
+
+
+@pytest.mark.parametrize(("paper", "landscape"), [("A4", False), ("A4", True), ("A3", False)])
+def test_dose_table_words_clear_of_the_rules_and_inside_the_page(
+    paper: str, landscape: bool, monkeypatch
+) -> None:
+    """Read from a metre away, a header word touching a rule ("Rocuronium") is misread:
+    every line of every cell keeps at least the minimum padding inside its column, and
+    the table is no wider than the frame it stands in."""
+    from reportlab.pdfbase import pdfmetrics
+
+    import airway.render_sheets as rs
+
+    tables: list = []
+
+    class Recorded(rs.Table):  # type: ignore[misc, name-defined]
+        def __init__(self, rows, colWidths, **kw):  # type: ignore[no-untyped-def]
+            tables.append((rows, list(colWidths)))
+            super().__init__(rows, colWidths=colWidths, **kw)
+
+    monkeypatch.setattr(rs, "Table", Recorded)
+    render_sheet_pdf(_sheet("doses"), paper, landscape)
+    rows, widths = next(t for t in tables if str(t[0][0][0]) == "Weight")
+    frame = max(sum(w) for _, w in tables if len(w) == 1)  # the title bar spans the frame
+    assert sum(widths) <= frame + 0.01
+    size = sheet_styles(paper)["body"].fontSize
+    for r, row in enumerate(rows):
+        for c, (cell, width) in enumerate(zip(row, widths, strict=True)):
+            font = "DejaVuSans-Bold" if r == 0 or c == 0 else "DejaVuSans"
+            for line in str(cell).split("\n"):
+                room = width - 2 * rs.MIN_CELL_PADDING_PT
+                assert pdfmetrics.stringWidth(line, font, size) <= room, (line, paper)
