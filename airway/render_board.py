@@ -53,11 +53,11 @@ def render_board_pdf(
                 _p("; ".join(r.warnings), st["caution"]) if r.warnings else "",
             ]
         )
-    fractions = (0.13, 0.15, 0.08, 0.07, 0.08, 0.14, 0.10, 0.25)
-    grid = _grid(table, [width * f for f in fractions])
+    # The decision gets the room it needs on two lines; 'Check' holds short warnings.
+    fractions = (0.12, 0.14, 0.08, 0.07, 0.08, 0.24, 0.10, 0.17)
+    grid = _grid(table, [width * f for f in fractions], size=9)
     grid.setStyle(
         [
-            ("FONTSIZE", (0, 0), (-1, -1), 9),
             ("LEADING", (0, 0), (-1, -1), 11),
             ("TOPPADDING", (0, 0), (-1, -1), 2),
             ("BOTTOMPADDING", (0, 0), (-1, -1), 2),

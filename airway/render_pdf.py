@@ -150,7 +150,14 @@ class Paragraph(_Paragraph):
     _wrapped: tuple[float, tuple[float, float]] | None = None
 
     def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:
-        if self._wrapped is not None and self._wrapped[0] == availWidth:
+        # reportlab's split() drops the line breaks (blPara) when a frame has room for
+        # one line only and the paragraph moves on whole: wrap again then, or drawing
+        # it in the next frame fails.
+        if (
+            self._wrapped is not None
+            and self._wrapped[0] == availWidth
+            and "blPara" in self.__dict__
+        ):
             return self._wrapped[1]
         size = super().wrap(availWidth, availHeight)
         self._wrapped = (availWidth, size)
@@ -164,19 +171,19 @@ def _p(text: str, style: ParagraphStyle) -> Paragraph:
 CELL_PADDING_PT = 2.0  # left and right of every table cell
 
 
-def _text_width(text: str, bold: bool = False) -> float:
+def _text_width(text: str, bold: bool = False, size: float = MIN_FONT_PT) -> float:
     """Width in points of one line of table text (the fonts must be registered)."""
-    return float(pdfmetrics.stringWidth(text, FONT_BOLD if bold else FONT, MIN_FONT_PT))
+    return float(pdfmetrics.stringWidth(text, FONT_BOLD if bold else FONT, size))
 
 
-def _fitted(cell: object, width: float, bold: bool) -> object:
+def _fitted(cell: object, width: float, bold: bool, size: float) -> object:
     """A plain-text cell wider than its column is wrapped, never drawn into the next."""
-    if isinstance(cell, str) and _text_width(cell, bold) > width - 2 * CELL_PADDING_PT:
+    if isinstance(cell, str) and _text_width(cell, bold, size) > width - 2 * CELL_PADDING_PT:
         style = ParagraphStyle(
             "cell",
             fontName=FONT_BOLD if bold else FONT,
-            fontSize=MIN_FONT_PT,
-            leading=MIN_FONT_PT * 1.12,
+            fontSize=size,
+            leading=size * 1.12,
             textColor=INK,
         )
         return Paragraph(escape(cell), style)
@@ -184,7 +191,7 @@ def _fitted(cell: object, width: float, bold: bool) -> object:
 
 
 def _fit_widths(
-    rows: Sequence[Sequence[object]], widths: Sequence[float], header: bool
+    rows: Sequence[Sequence[object]], widths: Sequence[float], header: bool, size: float
 ) -> list[float]:
     """Column widths that hold every plain-text cell on one line where they can.
 
@@ -197,7 +204,8 @@ def _fit_widths(
     for r, row in enumerate(rows):
         for i, cell in enumerate(row):
             if isinstance(cell, str):
-                need[i] = max(need[i], _text_width(cell, header and r == 0) + 2 * CELL_PADDING_PT)
+                text = _text_width(cell, header and r == 0, size)
+                need[i] = max(need[i], text + 2 * CELL_PADDING_PT)
     fitted = list(widths)
     for i, needed in enumerate(need):
         short = needed - fitted[i]
@@ -211,17 +219,23 @@ def _fit_widths(
     return fitted
 
 
-def _grid(rows: Sequence[Sequence[object]], widths: Sequence[float], header: bool = True) -> Table:
-    widths = _fit_widths(rows, widths, header)
+def _grid(
+    rows: Sequence[Sequence[object]],
+    widths: Sequence[float],
+    header: bool = True,
+    size: float = MIN_FONT_PT,
+) -> Table:
+    """A ruled table; plain-text cells in ``size`` points, a bold header row."""
+    widths = _fit_widths(rows, widths, header, size)
     rows = [
-        [_fitted(cell, w, header and r == 0) for cell, w in zip(row, widths, strict=True)]
+        [_fitted(cell, w, header and r == 0, size) for cell, w in zip(row, widths, strict=True)]
         for r, row in enumerate(rows)
     ]
     table = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
     style = [
         ("FONTNAME", (0, 0), (-1, -1), FONT),
-        ("FONTSIZE", (0, 0), (-1, -1), MIN_FONT_PT),
-        ("LEADING", (0, 0), (-1, -1), MIN_FONT_PT * 1.12),
+        ("FONTSIZE", (0, 0), (-1, -1), size),
+        ("LEADING", (0, 0), (-1, -1), size * 1.12),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LINEBELOW", (0, 0), (-1, -1), 0.25, colors.grey),
         ("TOPPADDING", (0, 0), (-1, -1), 0.3),

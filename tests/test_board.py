@@ -118,3 +118,30 @@ def test_one_woman_is_one_woman(runner, tmp_path: Path) -> None:
     r = runner.invoke(app, ["board", str(folder), "-o", str(out), "--today", "2026-12-02"])
     assert r.exit_code == 0 and "(1 woman)" in r.stderr
     assert ": 1 woman" in " ".join(PdfReader(out).pages[0].extract_text().split())
+
+
+def test_boards_of_every_size_up_to_a_busy_ward_print(tmp_path: Path) -> None:
+    """A board of 13 women once failed with an internal error: the closing note met the
+    foot of page 1 with room for one line, and a paragraph moved on whole could not be
+    drawn. Every board from 1 to 45 women, levels and ages mixed, must print."""
+    from airway.render_board import render_board_pdf
+
+    folder = tmp_path / "ward"
+    folder.mkdir()
+    for i in range(45):
+        (folder / f"W{i:02d}.json").write_text(
+            render_json(
+                build_plan(
+                    make(
+                        assessed_on=f"2026-11-{1 + i % 30:02d}",
+                        patient={"weight_kg": 60 + i * 2, "height_cm": 150 + i % 30},
+                        airway={"mallampati": 1 + i % 4, "large_breasts": i % 3 == 0},
+                    )
+                )
+            )
+        )
+    plans, skipped = load_plans(folder)
+    assert len(plans) == 45 and not skipped
+    for n in range(1, 46):
+        rows = board_rows(plans[:n], date(2026, 12, 2), max_age_days=14)
+        assert render_board_pdf(rows, "2026-12-02", 14, []).startswith(b"%PDF"), n

@@ -9,6 +9,7 @@ from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
+from typer.testing import CliRunner
 
 from airway import build_plan, read_assessment
 from airway.cli import app
@@ -351,30 +352,68 @@ def test_every_step_of_the_sequence_is_printed_or_said_where_it_is(
             assert f" {n} " in sequence, (n, step.title)
 
 
-def test_no_plain_table_text_is_wider_than_its_column(monkeypatch) -> None:
+def test_no_plain_table_text_is_wider_than_its_column(monkeypatch, tmp_path: Path) -> None:
     """A number or word drawn past its cell runs into the next one ("> 20 min> 20 min"
     in the dense layout's oxygen table): every plain-text cell of every table, on both
-    papers and in both layouts, fits its column inside the padding."""
+    papers and in both layouts, on the clinic summary and on the ward board, fits its
+    column inside the padding."""
+    import csv
+
+    import airway.render_board
     import airway.render_pdf as rp
+    import airway.render_summary
 
-    tables: list[tuple[list, list[float], bool]] = []
+    grids: list[tuple] = []
+    plain_grid = rp._grid
 
-    class Recorded(rp.Table):  # type: ignore[misc, name-defined]
-        def __init__(self, rows, colWidths, **kw):  # type: ignore[no-untyped-def]
-            tables.append((rows, list(colWidths), kw.get("repeatRows") == 1))  # header bold
-            super().__init__(rows, colWidths=colWidths, **kw)
+    def recorded(rows, widths, header=True, size=rp.MIN_FONT_PT):  # type: ignore[no-untyped-def]
+        table = plain_grid(rows, widths, header, size)
+        grids.append((rows, table._colWidths, header, size))
+        return table
 
-    monkeypatch.setattr(rp, "Table", Recorded)
+    for module in (rp, airway.render_board, airway.render_summary):
+        monkeypatch.setattr(module, "_grid", recorded)
     cases = list(_level_cases()) + [read_assessment(p) for p in EXAMPLES]
     for assessment in cases:
         for paper in ("A4", "letter"):
             render_plan_pdf(build_plan(assessment), paper)
+    clinic = Path(__file__).parent.parent / "examples" / "clinic-list.csv"
+    with clinic.open(encoding="utf-8") as f:
+        rows = list(csv.reader(f))[:41]  # 40 women, the bad rows among them
+    short = tmp_path / "list.csv"
+    with short.open("w", newline="", encoding="utf-8") as f:
+        csv.writer(f).writerows(rows)
+    runner = CliRunner()
+    out = tmp_path / "out"
+    r = runner.invoke(app, ["batch", str(short), "--out", str(out), "--pdf", "--jobs", "1"])
+    assert r.exit_code in (0, 2), r.output
+    board = ["board", str(out), "-o", str(tmp_path / "b.pdf"), "--today", "2026-12-02"]
+    assert runner.invoke(app, board).exit_code == 0
     checked = 0
-    for rows, widths, header in tables:
-        for r, row in enumerate(rows):
+    for rows_, widths, header, size in grids:
+        for r_, row in enumerate(rows_):
             for cell, width in zip(row, widths, strict=True):
                 if isinstance(cell, str):
                     checked += 1
-                    bold = header and r == 0
-                    assert rp._text_width(cell, bold) <= width - 2 * rp.CELL_PADDING_PT, cell
-    assert checked > 100
+                    wide = rp._text_width(cell, header and r_ == 0, size)
+                    assert wide <= width - 2 * rp.CELL_PADDING_PT, (cell, size)
+    assert checked > 1000 and {9} <= {g[3] for g in grids}  # the board's 9 pt was seen
+
+
+def test_paragraph_moved_on_whole_still_draws_in_the_next_frame() -> None:
+    """reportlab drops a paragraph's line breaks when a frame has room for one line only
+    (no orphans) and moves it on whole; the once-per-width wrap must break the lines
+    again then, or drawing it fails and no PDF is written (seen on a ward board)."""
+    import io
+
+    from reportlab.pdfgen.canvas import Canvas
+
+    from airway import render_pdf
+
+    render_pdf._register_fonts()
+    style = render_pdf._styles()["body"]
+    para = render_pdf.Paragraph("enough words to fill several lines " * 8, style)
+    para.wrap(200, 1000)
+    assert para.split(200, style.leading * 1.5) == []  # room for one line: moved on whole
+    para.wrap(200, 1000)  # the next frame, the same width
+    para.drawOn(Canvas(io.BytesIO()), 0, 0)
