@@ -14,7 +14,7 @@ from pathlib import Path
 
 from pydantic import ValidationError
 
-from .decision import SHORT, by_category_text
+from .decision import at_a_glance
 from .oxygenation import minutes_label
 from .plan import RULES_VERSION
 from .plan_model import Plan, plan_from_data, saved_object
@@ -72,11 +72,7 @@ def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow
         first_tube_mm=plan.equipment.tracheal_tube_mm.first,
         supraglottic_size=plan.equipment.supraglottic_size,
         minutes_to_spo2_90=minutes_label(oxy.minutes_to_spo2_90, oxy.horizon_minutes),
-        decision=(
-            by_category_text(plan.decision.if_category)
-            if plan.decision.if_category
-            else SHORT[plan.decision.recommendation]
-        ),
+        decision=at_a_glance(plan.decision.recommendation, plan.decision.if_category),
         assessed_on="" if assessed is None else assessed.isoformat(),
         warnings=tuple(warnings),
     )

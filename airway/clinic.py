@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from pydantic import ValidationError
 
 from .assessment import Assessment
+from .decision import at_a_glance
 from .errors import InputError, Problem
 from .fields import BY_PATH, nest, parse_text
 from .loading import problems_from_validation
@@ -219,7 +220,7 @@ def summary_row(row: Row, plan: Plan | None) -> SummaryRow:
         minutes_to_spo2_90=minutes_label(
             plan.oxygenation.minutes_to_spo2_90, plan.oxygenation.horizon_minutes
         ),
-        decision=plan.decision.phrase,
+        decision=at_a_glance(plan.decision.recommendation, plan.decision.if_category),
         flags=flags_for(plan),
     )
 

@@ -74,6 +74,12 @@ def by_category_text(if_category: dict[str, str]) -> str:
     )
 
 
+def at_a_glance(recommendation: str, if_category: dict[str, str] | None) -> str:
+    """The decision in a few words for a list: 'wake', 'senior call', or for a clinic
+    plan the choice by urgency ('if urgency category 1 or 2: proceed; ...')."""
+    return by_category_text(if_category) if if_category else SHORT[recommendation]
+
+
 class DecisionFactor(NamedTuple):
     name: str
     finding: str

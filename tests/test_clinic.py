@@ -142,6 +142,24 @@ def test_summary_sorted_by_level_and_flags_follow_their_rules() -> None:
     assert ordered[-1].flags == ()
 
 
+def test_summary_gives_the_decision_as_the_board_does() -> None:
+    """A clinic plan has no urgency yet, so its decision is the choice by urgency
+    category; 'decide on the day' in every row of a summary tells the reader nothing.
+    With the urgency known (category 1 on the list) it is the decision itself."""
+    header = HEADER.rstrip("\n") + ",context.urgency_category\n"
+    rows = read_clinic_list(header + "A,,80,165,3,,\nB,,80,165,3,,1\n", "list.csv")
+    by_id = {r.id: (r, build_plan(r.assessment)) for r in rows}  # type: ignore[arg-type]
+    clinic_row, clinic_plan = by_id["A"]
+    assert clinic_plan.decision.recommendation == "decide_on_the_day"
+    text = summary_row(clinic_row, clinic_plan).decision
+    for category, choice in clinic_plan.decision.if_category.items():
+        assert category in text and choice in text
+    assert "decide on the day" not in text
+    known_row, known_plan = by_id["B"]
+    assert not known_plan.decision.if_category
+    assert summary_row(known_row, known_plan).decision in {"wake", "proceed", "senior call"}
+
+
 def test_rerun_refused_force_replaces_resume_keeps_and_redoes_changed(runner, tmp_path: Path):
     f = _list(tmp_path, "A1,,80,165,1,\nA2,,90,160,2,\n")
     out = tmp_path / "out"
