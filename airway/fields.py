@@ -169,6 +169,11 @@ def parse_text(spec: FieldSpec, text: str) -> object:
     text = text.strip()
     if text == NOT_ASSESSED:
         return None
+    # "92 kg" or "162cm": the field's own unit, typed out of habit, is dropped; any
+    # other unit ("203 lb", "1.62 m") stays unreadable and is asked again.
+    number = spec.kind in ("number", "integer")
+    if number and spec.unit and text.lower().endswith(spec.unit.lower()):
+        text = text[: -len(spec.unit)].rstrip()
     if spec.kind == "number":
         try:
             return float(text.replace(",", "."))

@@ -46,6 +46,9 @@ def test_readme_column_reference_is_generated_from_the_model() -> None:
     ("path", "text", "value"),
     [
         ("patient.weight_kg", "80,5", 80.5),
+        ("patient.weight_kg", "92 kg", 92.0),  # her unit typed out of habit
+        ("patient.height_cm", "162cm", 162.0),
+        ("patient.age_years", "31 years", 31),
         ("airway.mallampati", "3", 3),
         ("airway.large_breasts", "Yes", True),
         ("airway.large_breasts", "no", False),
@@ -56,6 +59,21 @@ def test_readme_column_reference_is_generated_from_the_model() -> None:
 )
 def test_cells_read_as_their_field_kind(path: str, text: str, value: object) -> None:
     assert parse_text(BY_PATH[path], text) == value
+
+
+@pytest.mark.parametrize(
+    ("path", "text"),
+    [
+        ("patient.weight_kg", "203 lb"),
+        ("patient.weight_kg", "92 kgs"),
+        ("patient.height_cm", "1.62 m"),
+        ("patient.height_cm", "5 ft 4"),
+        ("patient.weight_kg", "kg"),
+    ],
+)
+def test_another_unit_is_never_read_as_a_number(path: str, text: str) -> None:
+    with pytest.raises(ValueError, match="not a number"):
+        parse_text(BY_PATH[path], text)
 
 
 def test_bad_rows_named_by_row_column_and_value_others_planned(tmp_path: Path) -> None:
