@@ -119,23 +119,28 @@ def _factors(earlier: Plan, later: Plan) -> list[Change]:
     # Factors that read one finding (Mallampati 2/3/4, the two pre-eclampsia grades)
     # are compared as one: their net contribution.
     groups: dict[str, list[tuple[float, float, str]]] = {}
+    unassessed: dict[str, tuple[bool, bool]] = {}  # finding: (not assessed before, now)
     for f in later.risk.factors:
         e = before.get(f.id)
         if e is None or f.role == "override":
             continue
-        groups.setdefault(finding_name(f.id), []).append((e.contribution, f.contribution, f.label))
-    for members in groups.values():
+        name = finding_name(f.id)
+        groups.setdefault(name, []).append((e.contribution, f.contribution, f.label))
+        unassessed[name] = (e.present is None, f.present is None)
+    for name, members in groups.items():
         old = sum(m[0] for m in members)
         new = sum(m[1] for m in members)
         delta = round(new - old, 2)
         if not delta:
             continue
+        # "none" would read as a normal finding where the finding was not assessed.
+        empty_before, empty_now = ("not assessed" if u else "none" for u in unassessed[name])
         was = [m[2] for m in members if m[0] > 0]
         now = [m[2] for m in members if m[1] > 0]
         if len(members) == 1 or was == now:
             what = members[0][2] if len(members) == 1 else now[0]
         else:  # "Mallampati class 3 (was Mallampati class 2)"
-            what = f"{now[0] if now else 'none'} (was {was[0] if was else 'none'})"
+            what = f"{now[0] if now else empty_now} (was {was[0] if was else empty_before})"
         out.append(
             Change(
                 kind="factor", what=what, before=f"+{old:.2f}", after=f"+{new:.2f}", danger=delta

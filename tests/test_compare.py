@@ -43,6 +43,18 @@ def test_more_dangerous_changes_come_first() -> None:
     assert what["tracheal tubes"].danger > 0  # smaller tubes: a narrower airway expected
 
 
+def test_a_factor_not_assessed_before_is_not_called_none() -> None:
+    """'was none' reads as a normal finding; a class not looked for is 'not assessed'."""
+    unassessed = make(patient={"weight_kg": 92, "height_cm": 163})
+    class_1 = make(patient={"weight_kg": 92, "height_cm": 163}, airway={"mallampati": 1})
+    class_4 = make(patient={"weight_kg": 92, "height_cm": 163}, airway={"mallampati": 4})
+    later = build_plan(class_4)
+    factors = [ch.what for ch in compare_plans(build_plan(unassessed), later).changes]
+    assert "Mallampati class 4 (was not assessed)" in factors
+    factors = [ch.what for ch in compare_plans(build_plan(class_1), later).changes]
+    assert "Mallampati class 4 (was none)" in factors
+
+
 def test_same_assessment_nothing_changed() -> None:
     c = compare_plans(build_plan(CLINIC), build_plan(CLINIC))
     assert c.changes == () and not c.more_dangerous and not c.plan_changed
