@@ -99,14 +99,19 @@ def _register_fonts() -> None:
     )
 
 
-def _styles() -> dict[str, ParagraphStyle]:
+def _styles(tight: bool = False) -> dict[str, ParagraphStyle]:
+    """The paragraph styles; ``tight`` sets lines closer (the same sizes) for the rare
+    level 1-2 plan that spills a few lines onto a second page even when dense."""
+    body_leading, small_leading = (1.1, 1.05) if tight else (1.2, 1.12)
     base = ParagraphStyle(
-        "body", fontName=FONT, fontSize=BODY_PT, leading=BODY_PT * 1.2, textColor=INK
+        "body", fontName=FONT, fontSize=BODY_PT, leading=BODY_PT * body_leading, textColor=INK
     )
     small = MIN_FONT_PT
     return {
         "body": base,
-        "small": ParagraphStyle("small", parent=base, fontSize=small, leading=small * 1.12),
+        "small": ParagraphStyle(
+            "small", parent=base, fontSize=small, leading=small * small_leading
+        ),
         "bold": ParagraphStyle("bold", parent=base, fontName=FONT_BOLD),
         "h1": ParagraphStyle("h1", parent=base, fontName=FONT_BOLD, fontSize=13, leading=16),
         "h2": ParagraphStyle(
@@ -115,7 +120,7 @@ def _styles() -> dict[str, ParagraphStyle]:
             fontName=FONT_BOLD,
             fontSize=9,
             leading=10.5,
-            spaceBefore=2,
+            spaceBefore=0.5 if tight else 2,
             spaceAfter=0.5,
             textColor=ACCENT,
         ),
@@ -932,4 +937,10 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
         # flowables; lay out fresh ones.
         head = make_head()
         pdf = build(dense=True)
+        if one_page and pages[-1] > 1:
+            # Still a few lines over: the same type with its lines set closer. A plan
+            # that spills even so keeps its second page; nothing is ever left out.
+            st = _styles(tight=True)
+            head = make_head()
+            pdf = build(dense=True)
     return pdf

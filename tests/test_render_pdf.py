@@ -417,3 +417,47 @@ def test_paragraph_moved_on_whole_still_draws_in_the_next_frame() -> None:
     assert para.split(200, style.leading * 1.5) == []  # room for one line: moved on whole
     para.wrap(200, 1000)  # the next frame, the same width
     para.drawOn(Canvas(io.BytesIO()), 0, 0)
+
+
+# Level 2 plans that spilled a few lines onto a second A4 page even when dense (found by
+# a random sweep of 10,000 plans): many findings, no height, long identifiers.
+SPILLED = [
+    {
+        "identity": {"name": "Aaaaaaaaaaa-aaéaaaaaaéaaaaaaøaaaaøñaa"},
+        "label": "L" * 112,
+        "patient": {"weight_kg": 97.7, "age_years": 20, "in_labour": True},
+        "airway": {"upper_lip_bite": 2, "mouth_opening_cm": 4.8, "large_breasts": True},
+        "preeclampsia": {
+            "status": "with_severe_features",
+            "signs": ["new_snoring", "facial_oedema"],
+        },
+    },
+    {
+        "identity": {"name": "Aa'aaaaüaa aaaaa  a"},
+        "label": "L" * 50,
+        "patient": {
+            "weight_kg": 177.0,
+            "age_years": 39,
+            "in_labour": True,
+            "haemoglobin_g_per_l": 85,
+        },
+        "airway": {"upper_lip_bite": 1, "thyromental_cm": 6.0, "large_breasts": True},
+        "preeclampsia": {
+            "status": "with_severe_features",
+            "signs": ["facial_oedema", "tongue_swelling", "breathless_lying_flat"],
+        },
+    },
+]
+
+
+@pytest.mark.parametrize("data", SPILLED, ids=["first", "second"])
+def test_a_level_2_plan_that_spilled_when_dense_is_set_tighter_on_one_page(data) -> None:
+    import io
+
+    from airway.loading import assessment_from_mapping
+
+    plan = build_plan(assessment_from_mapping(data))
+    assert plan.risk.level == 2
+    pdf = render_plan_pdf(plan)
+    assert len(PdfReader(io.BytesIO(pdf)).pages) == 1
+    assert min(_font_sizes(pdf)) >= 8  # closer lines, never smaller type
