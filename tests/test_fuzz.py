@@ -143,3 +143,67 @@ def test_command_line_exit_0_or_2_never_a_traceback(flat: dict[str, object]) -> 
     r = CliRunner().invoke(app, ["plan", "-", "-f", "json"], input=text)
     assert r.exit_code in (0, 2), (text, r.output, r.exception)
     assert "Traceback" not in r.output
+
+
+SIGNS = ["voice_change", "stridor", "facial_oedema", "tongue_swelling", "new_snoring"]
+# Valid assessments of every shape the clinic meets: any finding given or not, any
+# identifiers up to their limits; the PDF layout has many branches (head height, dense
+# and closer-set fallbacks, reference sections after the actions).
+valid_assessments = st.fixed_dictionaries(
+    {
+        "patient": st.fixed_dictionaries(
+            {"weight_kg": st.floats(40, 250)},
+            optional={
+                "height_cm": st.floats(135, 200),
+                "age_years": st.integers(16, 55),
+                "in_labour": st.booleans(),
+                "haemoglobin_g_per_l": st.integers(60, 160),
+            },
+        )
+    },
+    optional={
+        "identity": st.fixed_dictionaries(
+            {"name": st.text(st.characters(codec="latin-1", categories=["L"]), max_size=80)}
+        ),
+        "label": st.text("Lm- ", max_size=120),
+        "airway": st.fixed_dictionaries(
+            {},
+            optional={
+                "mallampati": st.integers(1, 4),
+                "upper_lip_bite": st.integers(1, 3),
+                "thyromental_cm": st.floats(3, 10),
+                "mouth_opening_cm": st.floats(1.5, 6),
+                "neck_movement": st.sampled_from(["normal", "reduced", "fixed"]),
+                "large_breasts": st.booleans(),
+                "short_neck": st.booleans(),
+                "receding_mandible": st.booleans(),
+            },
+        ),
+        "preeclampsia": st.fixed_dictionaries(
+            {
+                "status": st.sampled_from(
+                    ["none", "without_severe_features", "with_severe_features"]
+                ),
+                "signs": st.lists(st.sampled_from(SIGNS), unique=True, max_size=3),
+            }
+        ),
+        "context": st.fixed_dictionaries({"urgency_category": st.integers(1, 4)}),
+    },
+)
+
+
+@settings(max_examples=25 * SCALE, deadline=None)
+@given(data=valid_assessments, paper=st.sampled_from(["A4", "letter"]))
+def test_every_valid_assessment_prints_within_its_pages(data, paper) -> None:
+    """A printed plan never fails to lay out; levels 1-2 take one A4 page (Letter, which
+    is shorter, may take two) and levels 3-4 at most two."""
+    import io
+
+    from pypdf import PdfReader
+
+    from airway.loading import assessment_from_mapping
+    from airway.render_pdf import render_plan_pdf
+
+    plan = build_plan(assessment_from_mapping(data))
+    pages = len(PdfReader(io.BytesIO(render_plan_pdf(plan, paper))).pages)
+    assert pages <= (1 if plan.risk.level <= 2 and paper == "A4" else 2)
