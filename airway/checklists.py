@@ -137,6 +137,11 @@ def _mg(plan: Plan, drug: str) -> str:
     )
 
 
+# A checklist is read aloud and ticked in an emergency: one action a line. The limits
+# also keep every item and heading shorter than a printed page (project rule).
+ITEM_MAX_CHARS = 240
+TITLE_MAX_CHARS = 120
+
 _WHEN = re.compile(r"\{when\s+(?P<body>[^{}]*)\}\s*$")
 _VALUE = re.compile(r"\{\{\s*(?P<name>[a-z0-9_]+)\s*\}\}")
 _LEVEL = re.compile(r"^level\s*>=\s*(?P<n>[1-4])$")
@@ -144,7 +149,7 @@ _LEVEL = re.compile(r"^level\s*>=\s*(?P<n>[1-4])$")
 
 class FrontMatter(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
-    title: str = Field(min_length=1)
+    title: str = Field(min_length=1, max_length=TITLE_MAX_CHARS)
     use: tuple[str, ...] = ("sheet",)
     sheet: str
     paper: str = "A4"
@@ -226,6 +231,12 @@ def _item(text: str, checked: bool | None, path: str, line: int) -> Item:
         )
     if not text:
         raise ChecklistError(path, line, "empty item")
+    if len(text) > ITEM_MAX_CHARS:
+        raise ChecklistError(
+            path,
+            line,
+            f"item is {len(text)} characters; at most {ITEM_MAX_CHARS} (one action a line)",
+        )
     return Item(text=text, line=line, condition=condition, checkbox=checked is not None)
 
 
@@ -260,6 +271,10 @@ def parse_checklist(text: str, path: str) -> Checklist:
         elif tok.type == "heading_open":
             close()
             title, items = (tokens[i + 1].content.strip(), line or 0), []
+            if len(title[0]) > TITLE_MAX_CHARS:
+                raise ChecklistError(
+                    path, line, f"heading is {len(title[0])} characters; at most {TITLE_MAX_CHARS}"
+                )
         elif tok.type == "list_item_open":
             depth += 1
             if depth > 1:

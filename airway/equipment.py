@@ -11,7 +11,7 @@ import hashlib
 import json
 from importlib import resources
 from pathlib import Path
-from typing import NamedTuple
+from typing import Annotated, NamedTuple
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
 
@@ -48,6 +48,13 @@ DEVICE_RULE_EVIDENCE = Evidence(
 )
 
 
+# A unit's names for its devices print in table cells of the plan and the trolley
+# sheets; a cell taller than a page cannot be laid out. One or two printed lines is
+# ample for a device and its sizes (project rule).
+CATALOGUE_TEXT_MAX = 160
+CatalogueText = Annotated[str, Field(min_length=1, max_length=CATALOGUE_TEXT_MAX)]
+
+
 class Band(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
     size: float
@@ -57,22 +64,22 @@ class Band(BaseModel):
 
 class Supraglottic(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
-    device: str
+    device: CatalogueText
     bands: tuple[Band, ...] = Field(min_length=1)
 
 
 class Laryngoscopes(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
-    videolaryngoscope: str
-    direct: str
-    short_handle: str
+    videolaryngoscope: CatalogueText
+    direct: CatalogueText
+    short_handle: CatalogueText
 
 
 class Adjuncts(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
-    face_masks: str
-    oral_airways: str
-    bougie: str
+    face_masks: CatalogueText
+    oral_airways: CatalogueText
+    bougie: CatalogueText
 
 
 class Catalogue(BaseModel):

@@ -77,6 +77,10 @@ ERRORS = {
     "item_before_heading": ("- [ ] y\n", 7, "before any heading"),
     "stray_paragraph": ("# S\n\n- [ ] y\n\nloose text\n", 11, "only headings"),
     "nested": ("# S\n\n- [ ] y\n  - [ ] z\n", 10, "nested"),
+    # One action a line: an item, or a heading, longer than a printed page could hold
+    # made the plan impossible to lay out (an internal error, no PDF).
+    "item_too_long": ("# S\n\n- [ ] " + "x" * 241 + "\n", 9, "at most 240"),
+    "heading_too_long": ("# " + "S" * 121 + "\n\n- [ ] y\n", 7, "at most 120"),
 }
 
 

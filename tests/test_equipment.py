@@ -77,6 +77,14 @@ def test_catalogue_without_front_of_neck_size_is_refused(tmp_path: Path) -> None
         load_catalogue(bad)
 
 
+def test_catalogue_text_longer_than_two_printed_lines_is_refused(tmp_path: Path) -> None:
+    text = Path(__file__).parent.parent.joinpath("airway/data/equipment.toml").read_text()
+    bad = tmp_path / "bad.toml"
+    bad.write_text(text.replace('bougie = "', 'bougie = "' + "very long " * 20, 1))
+    with pytest.raises(CatalogueError, match="bougie"):
+        load_catalogue(bad)
+
+
 def test_large_breasts_open_a_short_handle() -> None:
     a = make(airway={"large_breasts": True})
     eq = choose_equipment(a, body_size(80, 165), 1, CATALOGUE)

@@ -461,3 +461,52 @@ def test_a_level_2_plan_that_spilled_when_dense_is_set_tighter_on_one_page(data)
     pdf = render_plan_pdf(plan)
     assert len(PdfReader(io.BytesIO(pdf)).pages) == 1
     assert min(_font_sizes(pdf)) >= 8  # closer lines, never smaller type
+
+
+def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
+    """A unit's checklists with every item and heading at the longest allowed, and its
+    catalogue with every name at the longest allowed, still lay out: plans at levels 1
+    and 4 on both papers, and every trolley sheet (a cell taller than a page once
+    made the plan impossible to print)."""
+    import re
+
+    from airway.checklists import ITEM_MAX_CHARS, TITLE_MAX_CHARS, load_checklists
+    from airway.equipment import CATALOGUE_TEXT_MAX, load_catalogue
+    from airway.render_sheets import render_sheet_pdf
+    from airway.sheets import SHEETS, build_sheet
+
+    root = Path(__file__).parent.parent / "airway" / "data"
+    unit = tmp_path / "unit"
+    unit.mkdir()
+    for source in (root / "checklists").glob("*.md"):
+        text = re.sub(
+            r"^(# )(.*)$",
+            lambda m: m[1] + (m[2] + " x" * 99)[:TITLE_MAX_CHARS],
+            source.read_text("utf-8"),
+            flags=re.M,
+        )
+
+        def longest(m: re.Match[str]) -> str:
+            when = re.search(r"\s*\{when [^}]*\}\s*$", m[2])
+            core = m[2][: when.start()] if when else m[2]
+            return m[1] + (core + " word" * 99)[:ITEM_MAX_CHARS] + (when[0] if when else "")
+
+        (unit / source.name).write_text(re.sub(r"^(- \[ \] |- )(.*)$", longest, text, flags=re.M))
+    names = "device|videolaryngoscope|direct|short_handle|face_masks|oral_airways|bougie"
+    catalogue = tmp_path / "catalogue.toml"
+    catalogue.write_text(
+        re.sub(
+            rf'^(({names}) = ")([^"]*)"',
+            lambda m: m[1] + (m[3] + " x" * 99)[:CATALOGUE_TEXT_MAX] + '"',
+            (root / "equipment.toml").read_text("utf-8"),
+            flags=re.M,
+        )
+    )
+    lists, cat = load_checklists(unit), load_catalogue(catalogue)
+    assert max(len(i.text) for c in lists for s in c.sections for i in s.items) == ITEM_MAX_CHARS
+    for assessment in (make(), make(airway={"mallampati": 4}, preeclampsia={"signs": ["stridor"]})):
+        plan = build_plan(assessment, cat, lists)
+        for paper in ("A4", "letter"):
+            assert render_plan_pdf(plan, paper).startswith(b"%PDF")
+    for kind in SHEETS:
+        assert render_sheet_pdf(build_sheet(kind, lists, cat, ())).startswith(b"%PDF")
