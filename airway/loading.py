@@ -1,5 +1,8 @@
 """Read an assessment from TOML or JSON (a file, or ``-`` for stdin).
 
+A saved JSON plan stands for the assessment it was made from (the clinic files
+plans; the reassessment compares with them and replans them under current rules).
+
 Every problem is collected and raised at once as an :class:`InputError` that
 names the field, the value given and what is allowed.
 """
@@ -146,7 +149,24 @@ def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessme
     data = _decode(text, source, fmt)
     if not isinstance(data, dict):
         raise InputError(source, [Problem("(top level)", "must be a table of sections")])
+    if is_saved_plan(data):
+        # A clinic files plans, not assessments: at the reassessment the saved plan is
+        # what there is. It holds the assessment it was made from, validated again here.
+        inner = data["assessment"]
+        source = f"{source} (the assessment inside this saved plan)"
+        if not isinstance(inner, dict):
+            raise InputError(source, [Problem("assessment", "must be a table of sections")])
+        data = inner
     return assessment_from_mapping(data, source)
+
+
+# Keys every saved JSON plan has and no assessment can have.
+SAVED_PLAN_KEYS = frozenset({"assessment", "generated_by", "input_sha256"})
+
+
+def is_saved_plan(data: Mapping[str, Any]) -> bool:
+    """True for a decoded JSON plan as ``airway plan -f json`` writes it."""
+    return SAVED_PLAN_KEYS <= data.keys()
 
 
 def read_text_file(path: Path, error: type[InputError] = InputError) -> str:

@@ -109,3 +109,27 @@ def test_plan_since_carries_the_box_in_every_format(runner, tmp_path: Path) -> N
 
     text = " ".join(p.extract_text() for p in PdfReader(pdf).pages)
     assert "Changed since the assessment of 2026-11-12" in " ".join(text.split())
+
+
+def test_a_saved_clinic_plan_stands_for_its_assessment(runner, tmp_path: Path) -> None:
+    """The clinic files plans (a clinic list writes <id>.json), not assessments: at the
+    reassessment in labour the saved plan is what there is. `compare`, `--since` and
+    replanning read the assessment inside it: the same changes, the same plan."""
+    clinic_file, labour_file = _files(tmp_path)
+    saved = tmp_path / "C001.json"
+    saved.write_text(runner.invoke(app, ["plan", str(clinic_file), "-f", "json"]).stdout)
+    from_assessment = runner.invoke(app, ["compare", str(clinic_file), str(labour_file)])
+    from_saved = runner.invoke(app, ["compare", str(saved), str(labour_file)])
+    assert from_saved.exit_code == 0, from_saved.output
+    assert from_saved.stdout == from_assessment.stdout
+    since = runner.invoke(app, ["plan", str(labour_file), "--since", str(saved)])
+    assert since.exit_code == 0 and "MORE DANGEROUS NOW" in since.stdout
+    replanned = json.loads(runner.invoke(app, ["plan", str(saved), "-f", "json"]).stdout)
+    assert replanned == json.loads(saved.read_text())
+
+
+def test_a_saved_plan_without_a_readable_assessment_is_bad_input(runner, tmp_path) -> None:
+    bad = tmp_path / "bad.json"
+    bad.write_text('{"assessment": [], "generated_by": {}, "input_sha256": "x"}')
+    r = runner.invoke(app, ["plan", str(bad)])
+    assert r.exit_code == 2 and "the assessment inside this saved plan" in r.output
