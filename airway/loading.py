@@ -166,7 +166,7 @@ SAVED_PLAN_KEYS = frozenset({"assessment", "generated_by", "input_sha256"})
 
 def is_saved_plan(data: Mapping[str, Any]) -> bool:
     """True for a decoded JSON plan as ``airway plan -f json`` writes it."""
-    return SAVED_PLAN_KEYS <= data.keys()
+    return data.keys() >= SAVED_PLAN_KEYS
 
 
 def read_text_file(path: Path, error: type[InputError] = InputError) -> str:
