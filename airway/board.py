@@ -8,7 +8,7 @@ other rules is marked. Pure apart from :func:`load_plans`, which reads files.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
 
@@ -81,9 +81,53 @@ def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow
 def board_rows(
     plans: list[tuple[str, Plan]], today: date, max_age_days: int = DEFAULT_MAX_AGE_DAYS
 ) -> list[BoardRow]:
-    """One row per plan, highest airway level first, then by name."""
+    """One row per plan, highest airway level first, then by name.
+
+    Plans that share a record number are one woman's: the clinic plan and the labour
+    plan side by side. Every plan but the newest is marked as replaced by it, so the
+    older one is not read at 3 a.m.; plans of the same date are marked to be checked.
+    """
     rows = [board_row(name, plan, today, max_age_days) for name, plan in plans]
+    extra = _same_woman_warnings(plans)
+    rows = [replace(r, warnings=r.warnings + extra.get(r.name, ())) for r in rows]
     return sorted(rows, key=lambda r: (-r.level, r.name))
+
+
+def _record_key(plan: Plan) -> str | None:
+    number = plan.assessment.identity.record_number
+    return number.strip().casefold() if number and number.strip() else None
+
+
+def _same_woman_warnings(plans: list[tuple[str, Plan]]) -> dict[str, tuple[str, ...]]:
+    """For plans sharing a record number: which is newer, or that none is. The number
+    itself is never printed, only the plans' names."""
+    groups: dict[str, list[tuple[str, Plan]]] = {}
+    for name, plan in plans:
+        key = _record_key(plan)
+        if key is not None:
+            groups.setdefault(key, []).append((name, plan))
+    out: dict[str, tuple[str, ...]] = {}
+    for group in groups.values():
+        if len(group) < 2:
+            continue
+        dated = [(plan.assessment.assessed_on or date.min, name) for name, plan in group]
+        newest_date = max(d for d, _ in dated)
+        newest = sorted(name for d, name in dated if d == newest_date)
+        for d, name in dated:
+            if d < newest_date:
+                out[name] = (
+                    f"replaced by {', '.join(newest)} (same record number): use that plan",
+                )
+            elif len(newest) > 1:
+                others = ", ".join(n for n in newest if n != name)
+                out[name] = (f"same record number and date as {others}: check which is current",)
+    return out
+
+
+def count_women(plans: list[tuple[str, Plan]]) -> int:
+    """Plans that share a record number count as one woman."""
+    keys = {_record_key(plan) or f"plan:{name}" for name, plan in plans}
+    return len(keys)
 
 
 def women(count: int) -> str:

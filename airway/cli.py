@@ -703,7 +703,7 @@ def board(
 
     Example: airway board plans -o board.pdf
     """
-    from .board import board_rows, load_plans, women
+    from .board import board_rows, count_women, load_plans, women
     from .output import write_atomic
     from .render_board import render_board_pdf
 
@@ -716,11 +716,12 @@ def board(
     with _errors():
         plans, notes = load_plans(folder)
         rows = board_rows(plans, day, max_age_days)
-        pdf = render_board_pdf(rows, day.isoformat(), max_age_days, notes, paper.value)
+        count = count_women(plans)
+        pdf = render_board_pdf(rows, day.isoformat(), max_age_days, notes, paper.value, count)
         write_atomic(output, pdf, force=force)
     for note in notes:
         typer.echo(f"airway: {note}", err=True)
-    typer.echo(f"wrote {output} ({women(len(rows))})", err=True)
+    typer.echo(f"wrote {output} ({women(count)})", err=True)
 
 
 @command(cls=GroupedCommand)

@@ -21,9 +21,14 @@ from .scoring import LEVEL_LABELS
 
 
 def render_board_pdf(
-    rows: list[BoardRow], today: str, max_age_days: int, notes: list[str], paper: str = "A4"
+    rows: list[BoardRow],
+    today: str,
+    max_age_days: int,
+    notes: list[str],
+    paper: str = "A4",
+    women_count: int | None = None,
 ) -> bytes:
-    """The board as PDF bytes."""
+    """The board as PDF bytes; ``women_count`` when plans of one woman share the board."""
     _register_fonts()  # paragraphs resolve bold and regular faces as they are made
     st = _styles()
     small = st["small"]
@@ -68,7 +73,11 @@ def render_board_pdf(
         if r.level >= 3:
             grid.setStyle([("LINEBEFORE", (0, i), (0, i), 3, WARN)])
     story: list[object] = [
-        _p(f"Labour ward airway board, printed {today}: {women(len(rows))}", st["h1"]),
+        _p(
+            f"Labour ward airway board, printed {today}: "
+            f"{women(len(rows) if women_count is None else women_count)}",
+            st["h1"],
+        ),
         _p(f"{CAUTION_AID} {CAUTION_REASSESS}", st["caution"]),
         Spacer(0, 3),
         grid,
@@ -77,7 +86,7 @@ def render_board_pdf(
             f"Highest airway level first (a bar marks levels 3 and 4). 'Check' marks a plan "
             f"older than {max_age_days} days, dated after today, without an assessment date, "
             f"or made under rules other than {RULES_VERSION}: reassess and replan before "
-            "relying on it. "
+            "relying on it; and a plan replaced by a newer one for the same record number. "
             "SpO2 90% is the predicted minutes of apnoea (model estimate); the full plan, "
             "with its sources, is in each woman's plan file.",
             small,

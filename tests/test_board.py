@@ -145,3 +145,31 @@ def test_boards_of_every_size_up_to_a_busy_ward_print(tmp_path: Path) -> None:
     for n in range(1, 46):
         rows = board_rows(plans[:n], date(2026, 12, 2), max_age_days=14)
         assert render_board_pdf(rows, "2026-12-02", 14, []).startswith(b"%PDF"), n
+
+
+def test_a_womans_older_plan_is_marked_replaced_by_her_newer_one(runner, tmp_path: Path) -> None:
+    """The clinic plan and the labour plan of one woman (one record number) side by side:
+    the older is marked replaced by the newer, so it is not the one read at 3 a.m.; two
+    of the same date are marked to be checked; she counts once; her number is never
+    printed."""
+    folder = tmp_path / "ward"
+    folder.mkdir()
+    mine = {"record_number": "RN-4471"}
+    _save(folder, "clinic", identity=mine, assessed_on="2026-11-10", airway={"mallampati": 1})
+    _save(folder, "labour", identity={"record_number": " rn-4471 "}, assessed_on="2026-11-30")
+    twin = {"record_number": "RN-9"}
+    _save(folder, "T1", identity=twin, assessed_on="2026-11-29")
+    _save(folder, "T2", identity=twin, assessed_on="2026-11-29")
+    _save(folder, "other", assessed_on="2026-11-29")
+    plans, _ = load_plans(folder)
+    by = {r.name: r for r in board_rows(plans, date(2026, 12, 2), max_age_days=14)}
+    assert by["clinic"].warnings[-1].startswith("replaced by labour (same record number)")
+    assert not any("record number" in w for w in by["labour"].warnings)
+    assert "same record number and date as T2" in by["T1"].warnings[-1]
+    assert "same record number and date as T1" in by["T2"].warnings[-1]
+    assert by["other"].warnings == ()
+    r = runner.invoke(app, ["board", str(folder), "-o", str(tmp_path / "b.pdf")])
+    assert r.exit_code == 0 and "(3 women)" in r.output
+    text = " ".join(p.extract_text() for p in PdfReader(tmp_path / "b.pdf").pages)
+    assert "3 women" in text and "replaced by labour" in " ".join(text.split())
+    assert "4471" not in text and "RN-9" not in text
