@@ -81,7 +81,7 @@ def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow
 def board_rows(
     plans: list[tuple[str, Plan]], today: date, max_age_days: int = DEFAULT_MAX_AGE_DAYS
 ) -> list[BoardRow]:
-    """One row per plan, highest airway level first, then by name.
+    """One row per plan, highest airway level first, then by name; replaced plans last.
 
     Plans that share a record number are one woman's: the clinic plan and the labour
     plan side by side. Every plan but the newest is marked as replaced by it, so the
@@ -90,7 +90,15 @@ def board_rows(
     rows = [board_row(name, plan, today, max_age_days) for name, plan in plans]
     extra = _same_woman_warnings(plans)
     rows = [replace(r, warnings=r.warnings + extra.get(r.name, ())) for r in rows]
-    return sorted(rows, key=lambda r: (-r.level, r.name))
+    # A replaced plan goes to the foot of the board, whatever its level.
+    return sorted(rows, key=lambda r: (_replaced(r), -r.level, r.name))
+
+
+def _replaced(row: BoardRow) -> bool:
+    return any(w.startswith(REPLACED) for w in row.warnings)
+
+
+REPLACED = "replaced by "
 
 
 def _record_key(plan: Plan) -> str | None:

@@ -155,14 +155,16 @@ def test_a_womans_older_plan_is_marked_replaced_by_her_newer_one(runner, tmp_pat
     folder = tmp_path / "ward"
     folder.mkdir()
     mine = {"record_number": "RN-4471"}
-    _save(folder, "clinic", identity=mine, assessed_on="2026-11-10", airway={"mallampati": 1})
+    _save(folder, "clinic", identity=mine, assessed_on="2026-11-10", airway={"mallampati": 4})
     _save(folder, "labour", identity={"record_number": " rn-4471 "}, assessed_on="2026-11-30")
     twin = {"record_number": "RN-9"}
     _save(folder, "T1", identity=twin, assessed_on="2026-11-29")
     _save(folder, "T2", identity=twin, assessed_on="2026-11-29")
     _save(folder, "other", assessed_on="2026-11-29")
     plans, _ = load_plans(folder)
-    by = {r.name: r for r in board_rows(plans, date(2026, 12, 2), max_age_days=14)}
+    rows = board_rows(plans, date(2026, 12, 2), max_age_days=14)
+    assert rows[-1].name == "clinic"  # replaced: at the foot, whatever its level
+    by = {r.name: r for r in rows}
     assert by["clinic"].warnings[-1].startswith("replaced by labour (same record number)")
     assert not any("record number" in w for w in by["labour"].warnings)
     assert "same record number and date as T2" in by["T1"].warnings[-1]
