@@ -503,6 +503,8 @@ class SheetKind(StrEnum):
 class SheetPaper(StrEnum):
     A4 = "A4"
     A3 = "A3"
+    letter = "letter"
+    tabloid = "tabloid"
 
 
 @command(cls=GroupedCommand)
@@ -515,7 +517,8 @@ def sheet(
         ),
     ],
     paper: Annotated[
-        SheetPaper, typer.Option("--paper", help="A4 or A3.", rich_help_panel=OUT)
+        SheetPaper,
+        typer.Option("--paper", help="A4, A3, US Letter or Tabloid.", rich_help_panel=OUT),
     ] = SheetPaper.A4,
     landscape: Annotated[
         bool, typer.Option("--landscape", help="Landscape page.", rich_help_panel=OUT)

@@ -13,7 +13,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from reportlab.lib import colors
-from reportlab.lib.pagesizes import A3, A4, landscape, portrait
+from reportlab.lib.pagesizes import A3, A4, TABLOID, landscape, letter, portrait
 from reportlab.lib.styles import ParagraphStyle
 from reportlab.lib.units import mm
 from reportlab.pdfbase import pdfmetrics
@@ -32,20 +32,27 @@ from reportlab.platypus import (
 from . import __version__
 from .markup import escape
 from .plan import RULES_VERSION
-from .render_pdf import FONT, FONT_BOLD, _register_fonts
+from .render_pdf import FONT, FONT_BOLD, MIN_FONT_PT, _register_fonts
 from .sheets import BAND_HEIGHTS_CM, Sheet
 
-PAPERS = {"A4": A4, "A3": A3}
-SCALE = {"A4": 1.0, "A3": 1.41}  # A3 is A4 scaled by the square root of 2
+PAPERS = {"A4": A4, "A3": A3, "letter": letter, "tabloid": TABLOID}
+# A3 is A4 scaled by the square root of 2; US Letter is near A4, Tabloid (11 x 17 in)
+# near A3.
+SCALE = {"A4": 1.0, "A3": 1.41, "letter": 1.0, "tabloid": 1.41}
 BODY_PT_A4 = 14.0
+# A sheet that does not fit one page at its paper's type size is set smaller, step by
+# step, down to this body size (project rule: still read from a step back); only a
+# sheet that does not fit even then takes a second page.
+MIN_SHEET_BODY_PT = 12.0
+FIT_STEPS = (1.0, 0.96, 0.92, 0.88)
 SAFE_MARGIN_MM = 15.0  # everything inside; the test checks nothing within 10 mm
 NAVY = colors.HexColor("#1F3A5F")
 SHADE = colors.HexColor("#E6E6E6")
 
 
-def sheet_styles(paper: str) -> dict[str, ParagraphStyle]:
-    """Type sizes for a sheet on this paper."""
-    k = SCALE[paper]
+def sheet_styles(paper: str, k: float | None = None) -> dict[str, ParagraphStyle]:
+    """Type sizes for a sheet on this paper (``k``: the scale, if not the paper's own)."""
+    k = SCALE[paper] if k is None else k
     body = ParagraphStyle(
         "body",
         fontName=FONT,
@@ -159,23 +166,29 @@ def _contacts(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: floa
     ]
 
 
+# reportlab's default cell padding, left and right; never less than the minimum.
+CELL_PADDING_PT = 6.0
+MIN_CELL_PADDING_PT = 2.0
+
+
 def _month_grid(width: float, st: dict[str, ParagraphStyle], k: float) -> list:
     parts: list[object] = [
         CondPageBreak(55 * mm * k),
         _p("Daily check: month ____________  year ______", st["h2"]),
     ]
-    for days in (range(1, 17), range(17, 32)):
-        cols = len(days) + 1
-        first = 30 * mm * k
-        w = [first] + [(width - first) / (cols - 1)] * (cols - 1)
+    first = 30 * mm * k
+    # As many days to a row as fit with their numbers clear of the rules: 16 across a
+    # portrait page, fewer in a landscape column (where 16 ran together).
+    day = pdfmetrics.stringWidth("31", FONT_BOLD, BODY_PT_A4 * k) + 2 * CELL_PADDING_PT + 2
+    fit = max(1, min(16, int((width - first) // day)))
+    rows_needed = -(-31 // fit)
+    per_row = -(-31 // rows_needed)  # rows as even as they can be: 16 + 15, 8 + 8 + 8 + 7
+    for start in range(1, 32, per_row):
+        days = range(start, min(start + per_row, 32))
+        w = [first] + [(width - first) / len(days)] * len(days)
         rows = [["Day", *[str(d) for d in days]], ["Initials", *[""] * len(days)]]
         parts += [_table(rows, w, k, header=True, heights=[None, 8 * mm * k]), Spacer(0, 3 * mm)]
     return parts
-
-
-# reportlab's default cell padding, left and right; never less than the minimum.
-CELL_PADDING_PT = 6.0
-MIN_CELL_PADDING_PT = 2.0
 
 
 def _measured_widths(
@@ -245,10 +258,22 @@ def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) 
 
 
 def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) -> bytes:
-    """One trolley sheet as PDF bytes."""
+    """One trolley sheet as PDF bytes: one page, in the largest type that fits it."""
     _register_fonts()
-    st = sheet_styles(paper)
-    k = SCALE[paper]
+    pdf, pages = b"", 0
+    for step in FIT_STEPS:
+        k = SCALE[paper] * step
+        if step != FIT_STEPS[0] and BODY_PT_A4 * k < MIN_SHEET_BODY_PT:
+            break
+        pdf, pages = _render(sheet, paper, landscape_, k)
+        if pages == 1:
+            break
+    return pdf
+
+
+def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes, int]:
+    """The sheet at scale ``k``, and how many pages it took."""
+    st = sheet_styles(paper, k)
     size = landscape(PAPERS[paper]) if landscape_ else portrait(PAPERS[paper])
     margin = SAFE_MARGIN_MM * mm
     buf = io.BytesIO()
@@ -294,8 +319,9 @@ def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) 
     )
 
     def on_page(canvas: Any, doc_: Any) -> None:
-        canvas.setFont(FONT, 8 * k)
-        canvas.drawString(margin, margin + 10 * k, footer)
+        footer_pt = max(MIN_FONT_PT, 8 * k)
+        canvas.setFont(FONT, footer_pt)
+        canvas.drawString(margin, margin + 1.25 * footer_pt, footer)
         canvas.drawString(margin, margin, footer2)
         canvas.drawRightString(size[0] - margin, margin, f"page {doc_.page}")
 
@@ -309,4 +335,4 @@ def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) 
         if sheet.month_grid:
             story += _month_grid(col_w, st, k)
     doc.build(story)
-    return buf.getvalue()
+    return buf.getvalue(), doc.page

@@ -19,6 +19,7 @@ from airway.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
 from airway.units import load_contacts
 
 from .conftest import make
+from .test_render_pdf import _font_sizes
 
 
 def _sheet(kind: str):  # type: ignore[no-untyped-def]
@@ -91,7 +92,9 @@ def _dark_pixels_near_edge(pgm: bytes, dpi: int, mm: float) -> tuple[int, int]:
 
 @pytest.mark.skipif(shutil.which("pdftoppm") is None, reason="poppler-utils not installed")
 @pytest.mark.parametrize("kind", SHEETS)
-@pytest.mark.parametrize(("paper", "landscape"), [("A4", False), ("A3", False), ("A4", True)])
+@pytest.mark.parametrize(
+    ("paper", "landscape"), [("A4", False), ("A3", False), ("A4", True), ("letter", False)]
+)
 def test_sheet_png_not_blank_and_clear_of_laminator_edge(
     kind: str, paper: str, landscape: bool, tmp_path: Path
 ) -> None:
@@ -108,6 +111,73 @@ def test_sheet_png_not_blank_and_clear_of_laminator_edge(
         assert near == 0
     _first_near, first_total = _dark_pixels_near_edge(pages[0].read_bytes(), dpi, 10)
     assert first_total > 500  # something is printed
+
+
+# Paper sizes in points: ISO 216 (A4 210 x 297 mm, A3 297 x 420 mm) and ANSI (US Letter
+# 8.5 x 11 in, Tabloid 11 x 17 in), at 72 points to the inch.
+PAPER_POINTS = {
+    "A4": (595.28, 841.89),
+    "A3": (841.89, 1190.55),
+    "letter": (612.0, 792.0),
+    "tabloid": (792.0, 1224.0),
+}
+
+
+@pytest.mark.parametrize("paper", PAPER_POINTS)
+@pytest.mark.parametrize("landscape", [False, True], ids=["portrait", "landscape"])
+def test_every_sheet_one_page_on_every_paper_in_large_type(paper: str, landscape: bool) -> None:
+    """A laminated sheet is one page. Where the paper's own type size does not fit (US
+    Letter is shorter than A4; a landscape page has two columns) the type steps down,
+    never below 12 pt body text; A4 and A3 portrait keep 14 pt and about 20 pt."""
+    import io
+
+    from airway.render_sheets import MIN_SHEET_BODY_PT, SCALE
+
+    for kind in SHEETS:
+        pdf = render_sheet_pdf(_sheet(kind), paper, landscape)
+        reader = PdfReader(io.BytesIO(pdf))
+        assert len(reader.pages) == 1, (kind, paper, landscape)
+        width, height = PAPER_POINTS[paper]
+        box = reader.pages[0].mediabox
+        expected = (height, width) if landscape else (width, height)
+        assert (float(box.width), float(box.height)) == pytest.approx(expected, abs=0.1)
+        body = sorted(_font_sizes(pdf))[1]  # the smallest after the 8 pt footer
+        assert body >= MIN_SHEET_BODY_PT
+        if paper in ("A4", "A3") and not landscape:
+            assert body == pytest.approx(BODY_PT_A4 * SCALE[paper])
+
+
+def test_month_grid_day_numbers_clear_of_the_rules(monkeypatch) -> None:
+    """Sixteen days across a landscape column ran together ("10111213"): every day
+    number keeps its padding inside its cell, portrait and landscape, A4 and Letter."""
+    from reportlab.pdfbase import pdfmetrics
+
+    import airway.render_sheets as rs
+
+    grids: list = []
+
+    class Recorded(rs.Table):  # type: ignore[misc, name-defined]
+        def __init__(self, rows, colWidths, **kw):  # type: ignore[no-untyped-def]
+            if rows and rows[0] and rows[0][0] == "Day":
+                grids.append((rows[0], list(colWidths)))
+            super().__init__(rows, colWidths=colWidths, **kw)
+
+    monkeypatch.setattr(rs, "Table", Recorded)
+    for paper in ("A4", "letter"):
+        for landscape in (False, True):
+            grids.clear()
+            pdf = render_sheet_pdf(_sheet("contents"), paper, landscape)
+            size = sorted(_font_sizes(pdf))[1]
+            # A sheet too long for one page is set again in smaller type: the last
+            # setting is the one printed.
+            last = max(i for i, (header, _) in enumerate(grids) if header[1] == "1")
+            del grids[:last]
+            days = [d for header, _ in grids for d in header[1:]]
+            assert days == [str(d) for d in range(1, 32)]  # every day, once, in order
+            for header, widths in grids:
+                for day, width in zip(header[1:], widths[1:], strict=True):
+                    text = pdfmetrics.stringWidth(day, "DejaVuSans-Bold", size)
+                    assert text + 2 * rs.CELL_PADDING_PT <= width, (paper, landscape, day)
 
 
 def test_sheet_pages_and_sizes(tmp_path: Path) -> None:
@@ -165,11 +235,10 @@ def test_sheets_reproducible_and_fonts_embedded(kind: str, tmp_path: Path) -> No
 
 
 @pytest.mark.parametrize("kind", SHEETS)
-@pytest.mark.parametrize("paper", ["A4", "A3"])
-def test_sheets_have_no_text_under_8_points(kind: str, paper: str) -> None:
-    from .test_render_pdf import _font_sizes
-
-    assert min(_font_sizes(render_sheet_pdf(_sheet(kind), paper))) >= 8.0
+@pytest.mark.parametrize("paper", ["A4", "A3", "letter", "tabloid"])
+@pytest.mark.parametrize("landscape", [False, True], ids=["portrait", "landscape"])
+def test_sheets_have_no_text_under_8_points(kind: str, paper: str, landscape: bool) -> None:
+    assert min(_font_sizes(render_sheet_pdf(_sheet(kind), paper, landscape))) >= 8.0
 
 
 @pytest.mark.parametrize(("paper", "landscape"), [("A4", False), ("A4", True), ("A3", False)])
