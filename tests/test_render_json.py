@@ -105,3 +105,20 @@ def test_floats_of_every_size_write_the_standard_bytes() -> None:
             for value in (m * 10.0**exponent, -m * 10.0**exponent, round(m * 10.0**exponent, 1)):
                 doc = {"value": value, "list": [value, {"nested": value}]}
                 assert dumps(doc) == standard_json(doc), value
+
+
+def test_odd_floats_inside_the_plans_records_write_the_standard_bytes() -> None:
+    """Each kind of record has its own writer, chosen by its fields' declared types; a
+    float the two encoders write apart (2.5e-05, 1e+17) in a number field, a curve point
+    or a nested record still gives json.dumps's bytes."""
+    plan = build_plan(read_assessment(EXAMPLES[0]))
+    dose = plan.doses[0]._replace(dose_mg_low=2.5e-05, volume_ml_high=1e17)
+    oxygenation = plan.oxygenation._replace(curve=((0, 99.0), (10, 2.5e-05)))
+    body = plan.body._replace(weight_kg=1e-05)
+    for odd in (
+        plan._replace(doses=(dose, *plan.doses[1:])),
+        plan._replace(oxygenation=oxygenation),
+        plan._replace(body=body),
+    ):
+        assert render_json(odd) == standard_json(plain(odd))
+        assert "e-05" in render_json(odd) or "e+17" in render_json(odd)
