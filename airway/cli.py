@@ -314,7 +314,7 @@ def assess(
         typer.echo(f"airway: {output} already exists; use --force to replace it", err=True)
         raise typer.Exit(2)
     try:
-        assessment = guided_entry(_ask, lambda text: typer.echo(text, err=True))
+        assessment = guided_entry(_ask, lambda text: typer.echo(text, err=True), _today())
     except Stopped:
         typer.echo("\nairway: stopped before the end: nothing saved", err=True)
         raise typer.Exit(1) from None

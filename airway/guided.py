@@ -90,7 +90,10 @@ class Stopped(Exception):
     """The clinician stopped (Ctrl-C) or input ended before the last question."""
 
 
-def question(spec: FieldSpec) -> str:
+TODAY = "today"  # a date answer the clinician may type instead of the date
+
+
+def question(spec: FieldSpec, today: date | None = None) -> str:
     blank = (
         "required"
         if spec.required
@@ -98,7 +101,10 @@ def question(spec: FieldSpec) -> str:
         if spec.kind == "choices"
         else "blank: not assessed"
     )
-    return f"{LABELS.get(spec.path, spec.path)} [{spec.allowed()}; {blank}]: "
+    allowed = spec.allowed()
+    if spec.kind == "date" and today is not None:
+        allowed += f" or {TODAY}"
+    return f"{LABELS.get(spec.path, spec.path)} [{allowed}; {blank}]: "
 
 
 def _check(values: dict[str, object], path: str) -> list[str]:
@@ -124,8 +130,11 @@ def running_level(values: dict[str, object]) -> str:
     return f"airway level {plan.risk.level} so far (index {plan.risk.index:.2f})"
 
 
-def guided_entry(ask: Ask, say: Say) -> Assessment:
+def guided_entry(ask: Ask, say: Say, today: date | None = None) -> Assessment:
     """Ask every question in :data:`GROUPS`; the finished assessment.
+
+    ``today`` (passed in: the library reads no clock) lets a date be answered with
+    "today", the usual answer at the bedside.
 
     Raises:
         Stopped: Ctrl-C or end of input before the last answer (nothing is kept).
@@ -137,7 +146,9 @@ def guided_entry(ask: Ask, say: Say) -> Assessment:
             for path in paths:
                 spec = BY_PATH[path]
                 while True:
-                    answer = ask(question(spec))
+                    answer = ask(question(spec, today))
+                    if spec.kind == "date" and today and answer.strip().lower() == TODAY:
+                        answer = today.isoformat()
                     try:
                         value = parse_text(spec, answer)
                     except ValueError as exc:

@@ -160,3 +160,21 @@ def test_through_a_terminal_ctrl_c_saves_nothing(tmp_path: Path) -> None:
             os.kill(pid, 9)
         os.close(fd)
     assert not out.exists()
+
+
+def test_the_date_may_be_answered_today() -> None:
+    """At the bedside the date of the assessment is today's: 'today' gives the date the
+    caller passes in (the library reads no clock); without one, 'today' is not a date."""
+    from datetime import date
+
+    def answers(first: str):  # type: ignore[no-untyped-def]
+        lines = iter([first] + [ANSWERS.get(p, "") for p in ORDER[1:]])
+        return lambda _prompt: next(lines)
+
+    said: list[str] = []
+    a = guided_entry(answers("Today"), said.append, date(2026, 12, 3))
+    assert a.assessed_on == date(2026, 12, 3)
+    lines = iter(["today", "2026-12-01"] + [ANSWERS.get(p, "") for p in ORDER[1:]])
+    b = guided_entry(lambda _prompt: next(lines), said.append)
+    assert b.assessed_on == date(2026, 12, 1)
+    assert any("not a date" in s for s in said)
