@@ -211,7 +211,9 @@ def _plan_for(
 def plan(
     file: Annotated[
         str | None,
-        typer.Argument(metavar="FILE", help="Assessment (.toml or .json), or - for stdin."),
+        typer.Argument(
+            metavar="FILE", help="Assessment (.toml, .json, a saved plan), or - for stdin."
+        ),
     ] = None,
     demo: Annotated[
         bool,
@@ -641,7 +643,9 @@ def batch(
 
 @command(cls=GroupedCommand)
 def compare(
-    earlier: Annotated[str, typer.Argument(metavar="EARLIER", help="The earlier assessment.")],
+    earlier: Annotated[
+        str, typer.Argument(metavar="EARLIER", help="The earlier assessment, or its saved plan.")
+    ],
     later: Annotated[str, typer.Argument(metavar="LATER", help="The later assessment.")],
     fmt: DataFormatOpt = DataFormat.text,
     catalogue: CatalogueOpt = None,
@@ -650,7 +654,8 @@ def compare(
 ) -> None:
     """What changed between two assessments of the same woman.
 
-    The changes that make the plan more dangerous come first.
+    The changes that make the plan more dangerous come first. A saved JSON plan
+    (a clinic list's plans/C001.json) stands for the assessment it was made from.
 
     Example: airway compare clinic.toml labour.toml
     """
