@@ -88,17 +88,10 @@ def board_rows(
     older one is not read at 3 a.m.; plans of the same date are marked to be checked.
     """
     rows = [board_row(name, plan, today, max_age_days) for name, plan in plans]
-    extra = _same_woman_warnings(plans)
+    extra, replaced = _same_woman_warnings(plans)
     rows = [replace(r, warnings=r.warnings + extra.get(r.name, ())) for r in rows]
     # A replaced plan goes to the foot of the board, whatever its level.
-    return sorted(rows, key=lambda r: (_replaced(r), -r.level, r.name))
-
-
-def _replaced(row: BoardRow) -> bool:
-    return any(w.startswith(REPLACED) for w in row.warnings)
-
-
-REPLACED = "replaced by "
+    return sorted(rows, key=lambda r: (r.name in replaced, -r.level, r.name))
 
 
 def _record_key(plan: Plan) -> str | None:
@@ -106,15 +99,19 @@ def _record_key(plan: Plan) -> str | None:
     return number.strip().casefold() if number and number.strip() else None
 
 
-def _same_woman_warnings(plans: list[tuple[str, Plan]]) -> dict[str, tuple[str, ...]]:
-    """For plans sharing a record number: which is newer, or that none is. The number
-    itself is never printed, only the plans' names."""
+def _same_woman_warnings(
+    plans: list[tuple[str, Plan]],
+) -> tuple[dict[str, tuple[str, ...]], set[str]]:
+    """For plans sharing a record number: which is newer, or that none is; and the
+    names of the plans a newer one replaces. The number itself is never printed, only
+    the plans' names."""
     groups: dict[str, list[tuple[str, Plan]]] = {}
     for name, plan in plans:
         key = _record_key(plan)
         if key is not None:
             groups.setdefault(key, []).append((name, plan))
     out: dict[str, tuple[str, ...]] = {}
+    replaced: set[str] = set()
     for group in groups.values():
         if len(group) < 2:
             continue
@@ -123,13 +120,14 @@ def _same_woman_warnings(plans: list[tuple[str, Plan]]) -> dict[str, tuple[str, 
         newest = sorted(name for d, name in dated if d == newest_date)
         for d, name in dated:
             if d < newest_date:
+                replaced.add(name)
                 out[name] = (
                     f"replaced by {', '.join(newest)} (same record number): use that plan",
                 )
             elif len(newest) > 1:
                 others = ", ".join(n for n in newest if n != name)
                 out[name] = (f"same record number and date as {others}: check which is current",)
-    return out
+    return out, replaced
 
 
 def count_women(plans: list[tuple[str, Plan]]) -> int:

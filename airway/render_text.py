@@ -11,7 +11,7 @@ from __future__ import annotations
 import textwrap
 
 from .body import BODY_FORMULA_WARNING
-from .decision import DECISION_TITLE, SHORT, by_category_text
+from .decision import DECISION_TITLE, at_a_glance, by_category_text
 from .doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text, mg_text
 from .oxygenation import Oxygenation, minutes_label
 from .plan_model import Plan
@@ -338,9 +338,8 @@ def _in_short(plan: Plan) -> list[str]:
     for dose in plan.doses:
         by_role.setdefault(dose.role, []).append(f"{_drug_name(dose)} {mg_text(dose)}")
     drugs = [" or ".join(names) for names in by_role.values()]
-    decision = SHORT[d.recommendation]
-    if d.if_category:  # urgency not yet known: 'by urgency category 1 or 2: proceed; ...'
-        decision = by_category_text(d.if_category).replace("if urgency", "by urgency", 1)
+    # For a clinic plan, 'by urgency category 1 or 2: proceed; ...' after the colon.
+    decision = at_a_glance(d.recommendation, d.if_category).replace("if urgency", "by urgency", 1)
     lines = _wrap(
         f"IN SHORT: {level_heading(r.level).lower()}; SpO2 90% in "
         f"{minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)} (model)",

@@ -34,6 +34,7 @@ def make(**sections: object) -> Assessment:
 
 # Fuzzing: a fixed, fast profile in CI; `HYPOTHESIS_PROFILE=deep` for a long run on demand.
 from hypothesis import HealthCheck, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
 
 settings.register_profile(
     "ci", derandomize=True, deadline=None, suppress_health_check=[HealthCheck.too_slow]
@@ -42,3 +43,18 @@ settings.register_profile(
     "deep", max_examples=20_000, deadline=None, suppress_health_check=[HealthCheck.too_slow]
 )
 settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "ci"))
+
+# Bedside airway findings, any of them given or not (for property tests).
+AIRWAY_FINDINGS = st.fixed_dictionaries(
+    {},
+    optional={
+        "mallampati": st.integers(1, 4),
+        "upper_lip_bite": st.integers(1, 3),
+        "thyromental_cm": st.floats(3, 10),
+        "mouth_opening_cm": st.floats(1, 7),
+        "neck_movement": st.sampled_from(["normal", "reduced", "fixed"]),
+        "short_neck": st.booleans(),
+        "receding_mandible": st.booleans(),
+        "large_breasts": st.booleans(),
+    },
+)

@@ -16,6 +16,8 @@ from airway.fields import field_specs
 from airway.loading import parse_assessment
 from airway.plan import build_plan
 
+from .conftest import AIRWAY_FINDINGS
+
 PATHS = [f.path for f in field_specs()]
 # CI runs a few thousand cases in all; HYPOTHESIS_PROFILE=deep runs 30 times as many.
 SCALE = 30 if os.environ.get("HYPOTHESIS_PROFILE") == "deep" else 1
@@ -166,19 +168,7 @@ valid_assessments = st.fixed_dictionaries(
             {"name": st.text(st.characters(codec="latin-1", categories=["L"]), max_size=80)}
         ),
         "label": st.text("Lm- ", max_size=120),
-        "airway": st.fixed_dictionaries(
-            {},
-            optional={
-                "mallampati": st.integers(1, 4),
-                "upper_lip_bite": st.integers(1, 3),
-                "thyromental_cm": st.floats(3, 10),
-                "mouth_opening_cm": st.floats(1.5, 6),
-                "neck_movement": st.sampled_from(["normal", "reduced", "fixed"]),
-                "large_breasts": st.booleans(),
-                "short_neck": st.booleans(),
-                "receding_mandible": st.booleans(),
-            },
-        ),
+        "airway": AIRWAY_FINDINGS,
         "preeclampsia": st.fixed_dictionaries(
             {
                 "status": st.sampled_from(

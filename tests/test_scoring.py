@@ -10,7 +10,7 @@ from hypothesis import strategies as st
 from airway.body import body_size
 from airway.scoring import LEVEL_THRESHOLDS, level_for_index, score
 
-from .conftest import make
+from .conftest import AIRWAY_FINDINGS, make
 
 
 def _risk(**sections: dict):  # type: ignore[no-untyped-def]
@@ -60,19 +60,6 @@ def test_level_boundaries() -> None:
     assert [level_for_index(x) for x in (0, lo - 1e-9, lo, mid, hi, 50)] == [1, 1, 2, 3, 4, 4]
 
 
-_airway = st.fixed_dictionaries(
-    {},
-    optional={
-        "mallampati": st.integers(1, 4),
-        "upper_lip_bite": st.integers(1, 3),
-        "thyromental_cm": st.floats(3, 10),
-        "mouth_opening_cm": st.floats(1, 7),
-        "neck_movement": st.sampled_from(["normal", "reduced", "fixed"]),
-        "short_neck": st.booleans(),
-        "receding_mandible": st.booleans(),
-        "large_breasts": st.booleans(),
-    },
-)
 _ADDITIONS = [
     ("airway", "short_neck", True),
     ("airway", "receding_mandible", True),
@@ -91,7 +78,7 @@ _ADDITIONS = [
 
 @settings(max_examples=150, deadline=None)
 @given(
-    airway=_airway,
+    airway=AIRWAY_FINDINGS,
     weight=st.floats(45, 180),
     height=st.floats(145, 190),
     addition=st.sampled_from(_ADDITIONS),
