@@ -8,14 +8,14 @@ from . import __version__
 from .board import BoardRow, women
 from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
 from .render_pdf import (
-    FONT_BOLD,
     WARN,
     _grid,
     _p,
-    _register_fonts,
     _styles,
     build_landscape_pdf,
+    font,
     landscape_width,
+    use_fonts,
 )
 from .scoring import LEVEL_LABELS
 
@@ -29,7 +29,7 @@ def render_board_pdf(
     women_count: int | None = None,
 ) -> bytes:
     """The board as PDF bytes; ``women_count`` when plans of one woman share the board."""
-    _register_fonts()  # paragraphs resolve bold and regular faces as they are made
+    use_fonts(rows, notes)  # before any paragraph: they resolve their faces as made
     st = _styles()
     small = st["small"]
     width = landscape_width(paper)
@@ -66,7 +66,7 @@ def render_board_pdf(
             ("LEADING", (0, 0), (-1, -1), 11),
             ("TOPPADDING", (0, 0), (-1, -1), 2),
             ("BOTTOMPADDING", (0, 0), (-1, -1), 2),
-            ("FONTNAME", (0, 0), (-1, 0), FONT_BOLD),
+            ("FONTNAME", (0, 0), (-1, 0), font(bold=True)),
         ]
     )
     for i, r in enumerate(rows, start=1):

@@ -51,6 +51,7 @@ from .decision import DECISION_TITLE, SHORT, by_category_text
 from .doses import SCALAR_LABEL, Dose
 from .errors import AirwayError
 from .markup import escape
+from .pdf_fonts import BUNDLED, BUNDLED_FILES, SYSTEM, SYSTEM_FILES, Faces, outside_cut, texts_in
 from .plan_model import Plan, RenderedChecklist
 from .render_text import minutes_text, weight_text
 from .scoring import level_heading
@@ -62,7 +63,7 @@ FONT_DIRS = (
     "/usr/share/fonts/truetype/dejavu",
     "/usr/share/fonts/dejavu",
 )
-FONT, FONT_BOLD = "DejaVuSans", "DejaVuSans-Bold"
+BUNDLED_FONT_DIR = Path(__file__).resolve().parent / "data" / "fonts"
 # Dark blue and a dark orange stay distinct in greyscale and for colour-blind readers.
 INK = colors.HexColor("#111111")
 ACCENT = colors.HexColor("#1F4E79")
@@ -79,22 +80,53 @@ LEVEL_PT = 14.0
 
 
 class FontMissingError(AirwayError):
-    """DejaVu Sans is needed to print ≥, µ, – and accented names."""
+    """The text holds characters the bundled font lacks, and DejaVu Sans is not installed."""
 
 
-def _register_fonts() -> None:
-    if FONT in pdfmetrics.getRegisteredFontNames():
-        return
+# The faces of the document being made: chosen by use_fonts() before each document
+# is laid out, read by every style and table of it (one document at a time).
+_faces: Faces = BUNDLED
+
+
+def font(bold: bool = False) -> str:
+    """The registered name of the regular or bold face of the current document."""
+    return _faces.bold if bold else _faces.regular
+
+
+def _register(faces: Faces, folder: Path, files: tuple[str, str]) -> None:
+    pdfmetrics.registerFont(TTFont(faces.regular, str(folder / files[0])))
+    pdfmetrics.registerFont(TTFont(faces.bold, str(folder / files[1])))
+    pdfmetrics.registerFontFamily(faces.regular, normal=faces.regular, bold=faces.bold)
+
+
+def use_fonts(*sources: object) -> Faces:
+    """Register and choose the faces for the next document, from all it will print.
+
+    ``sources`` are the values whose strings the document prints (the plan, the
+    sheet's lists, the board's rows); the renderers' own words are in the bundled
+    cut (a test reads them). The bundled cut of DejaVu Sans sets them unless one of
+    them holds a character outside it; then the whole DejaVu Sans of the system.
+    """
+    global _faces
+    outside = outside_cut(text for source in sources for text in texts_in(source))
+    faces = SYSTEM if outside else BUNDLED
+    if faces.regular not in pdfmetrics.getRegisteredFontNames():
+        if faces is BUNDLED:
+            _register(BUNDLED, BUNDLED_FONT_DIR, BUNDLED_FILES)
+        else:
+            _register(SYSTEM, _system_font_dir(outside), SYSTEM_FILES)
+    _faces = faces
+    return faces
+
+
+def _system_font_dir(outside: set[str]) -> Path:
     for folder in FONT_DIRS:
-        regular = Path(folder, "DejaVuSans.ttf")
-        bold = Path(folder, "DejaVuSans-Bold.ttf")
-        if folder and regular.is_file() and bold.is_file():
-            pdfmetrics.registerFont(TTFont(FONT, str(regular)))
-            pdfmetrics.registerFont(TTFont(FONT_BOLD, str(bold)))
-            pdfmetrics.registerFontFamily(FONT, normal=FONT, bold=FONT_BOLD)
-            return
+        if folder and all(Path(folder, name).is_file() for name in SYSTEM_FILES):
+            return Path(folder)
+    shown = " ".join(sorted(outside)[:10])
     raise FontMissingError(
-        "DejaVu Sans not found: install fonts-dejavu-core or set AIRWAY_FONT_DIR to a folder "
+        f"the text holds characters the bundled font lacks ({shown}); to print them, "
+        "install DejaVu Sans (fonts-dejavu-core) or set AIRWAY_FONT_DIR to a folder "
         "holding DejaVuSans.ttf and DejaVuSans-Bold.ttf"
     )
 
@@ -104,7 +136,7 @@ def _styles(tight: bool = False) -> dict[str, ParagraphStyle]:
     level 1-2 plan that spills a few lines onto a second page even when dense."""
     body_leading, small_leading = (1.1, 1.05) if tight else (1.2, 1.12)
     base = ParagraphStyle(
-        "body", fontName=FONT, fontSize=BODY_PT, leading=BODY_PT * body_leading, textColor=INK
+        "body", fontName=font(), fontSize=BODY_PT, leading=BODY_PT * body_leading, textColor=INK
     )
     small = MIN_FONT_PT
     return {
@@ -112,12 +144,12 @@ def _styles(tight: bool = False) -> dict[str, ParagraphStyle]:
         "small": ParagraphStyle(
             "small", parent=base, fontSize=small, leading=small * small_leading
         ),
-        "bold": ParagraphStyle("bold", parent=base, fontName=FONT_BOLD),
-        "h1": ParagraphStyle("h1", parent=base, fontName=FONT_BOLD, fontSize=13, leading=16),
+        "bold": ParagraphStyle("bold", parent=base, fontName=font(bold=True)),
+        "h1": ParagraphStyle("h1", parent=base, fontName=font(bold=True), fontSize=13, leading=16),
         "h2": ParagraphStyle(
             "h2",
             parent=base,
-            fontName=FONT_BOLD,
+            fontName=font(bold=True),
             fontSize=9,
             leading=10.5,
             spaceBefore=0.5 if tight else 2,
@@ -127,7 +159,7 @@ def _styles(tight: bool = False) -> dict[str, ParagraphStyle]:
         "level": ParagraphStyle(
             "level",
             parent=base,
-            fontName=FONT_BOLD,
+            fontName=font(bold=True),
             fontSize=LEVEL_PT,
             leading=LEVEL_PT * 1.2,
             textColor=colors.white,
@@ -136,11 +168,11 @@ def _styles(tight: bool = False) -> dict[str, ParagraphStyle]:
         "key_value": ParagraphStyle(
             "key_value",
             parent=base,
-            fontName=FONT_BOLD,
+            fontName=font(bold=True),
             fontSize=KEY_VALUE_PT,
             leading=KEY_VALUE_PT * 1.2,
         ),
-        "caution": ParagraphStyle("caution", parent=base, fontName=FONT_BOLD, textColor=WARN),
+        "caution": ParagraphStyle("caution", parent=base, fontName=font(bold=True), textColor=WARN),
     }
 
 
@@ -178,7 +210,7 @@ CELL_PADDING_PT = 2.0  # left and right of every table cell
 
 def _text_width(text: str, bold: bool = False, size: float = MIN_FONT_PT) -> float:
     """Width in points of one line of table text (the fonts must be registered)."""
-    return float(pdfmetrics.stringWidth(text, FONT_BOLD if bold else FONT, size))
+    return float(pdfmetrics.stringWidth(text, font(bold), size))
 
 
 def _fitted(cell: object, width: float, bold: bool, size: float) -> object:
@@ -186,7 +218,7 @@ def _fitted(cell: object, width: float, bold: bool, size: float) -> object:
     if isinstance(cell, str) and _text_width(cell, bold, size) > width - 2 * CELL_PADDING_PT:
         style = ParagraphStyle(
             "cell",
-            fontName=FONT_BOLD if bold else FONT,
+            fontName=font(bold),
             fontSize=size,
             leading=size * 1.12,
             textColor=INK,
@@ -238,7 +270,7 @@ def _grid(
     ]
     table = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
     style = [
-        ("FONTNAME", (0, 0), (-1, -1), FONT),
+        ("FONTNAME", (0, 0), (-1, -1), font()),
         ("FONTSIZE", (0, 0), (-1, -1), size),
         ("LEADING", (0, 0), (-1, -1), size * 1.12),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
@@ -249,7 +281,10 @@ def _grid(
         ("RIGHTPADDING", (0, 0), (-1, -1), CELL_PADDING_PT),
     ]
     if header:
-        style += [("BACKGROUND", (0, 0), (-1, 0), PALE), ("FONTNAME", (0, 0), (-1, 0), FONT_BOLD)]
+        style += [
+            ("BACKGROUND", (0, 0), (-1, 0), PALE),
+            ("FONTNAME", (0, 0), (-1, 0), font(bold=True)),
+        ]
     table.setStyle(TableStyle(style))
     return table
 
@@ -257,7 +292,7 @@ def _grid(
 def _drawing(width: float, height: float) -> Drawing:
     # Without initialFontName the renderer starts in Helvetica, which is not embedded.
     d = Drawing(width, height)
-    d.initialFontName = FONT
+    d.initialFontName = font()
     return d
 
 
@@ -271,7 +306,9 @@ def _bar(value: float, largest: float, width: float) -> Drawing:
 
 
 def _label(x: float, y: float, text: str, anchor: str = "start") -> String:
-    return String(x, y, text, fontName=FONT, fontSize=MIN_FONT_PT, textAnchor=anchor, fillColor=INK)
+    return String(
+        x, y, text, fontName=font(), fontSize=MIN_FONT_PT, textAnchor=anchor, fillColor=INK
+    )
 
 
 def _curve(plan: Plan, width: float) -> Drawing:
@@ -329,7 +366,7 @@ class _NumberedCanvas(Canvas):
         self.page_count.append(total)
         for state in self._pages:
             self.__dict__.update(state)
-            self.setFont(FONT, MIN_FONT_PT)
+            self.setFont(font(), MIN_FONT_PT)
             self.setFillColor(INK)
             width = self._pagesize[0]
             self.drawString(10 * mm, 6.5 * mm, self.footer)
@@ -409,7 +446,7 @@ def _key_block(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> Table
     )
     drug_table = Table([drugs], colWidths=[width / len(drugs)] * len(drugs))
     inner = [
-        ("FONTNAME", (0, 0), (-1, -1), FONT),  # else reportlab starts cells in Helvetica
+        ("FONTNAME", (0, 0), (-1, -1), font()),  # else reportlab starts cells in Helvetica
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LEFTPADDING", (0, 0), (-1, -1), 3),
         ("RIGHTPADDING", (0, 0), (-1, -1), 3),
@@ -423,7 +460,7 @@ def _key_block(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> Table
     table.setStyle(
         TableStyle(
             [
-                ("FONTNAME", (0, 0), (-1, -1), FONT),
+                ("FONTNAME", (0, 0), (-1, -1), font()),
                 ("BOX", (0, 0), (-1, -1), 1.2, tone),
                 ("LINEBELOW", (0, 0), (-1, 1), 0.6, tone),
                 ("LEFTPADDING", (0, 0), (-1, -1), 0),
@@ -461,7 +498,7 @@ def _since_box(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[
     box.setStyle(
         TableStyle(
             [
-                ("FONTNAME", (0, 0), (-1, -1), FONT),
+                ("FONTNAME", (0, 0), (-1, -1), font()),
                 ("BOX", (0, 0), (-1, -1), 1.0, WARN if c.more_dangerous else ACCENT),
                 ("TOPPADDING", (0, 0), (-1, -1), 2),
                 ("BOTTOMPADDING", (0, 0), (-1, -1), 2),
@@ -739,10 +776,10 @@ def landscape_width(paper: str) -> float:
 
 
 def build_landscape_pdf(story: list[object], paper: str, title: str, footer: str) -> bytes:
-    """A landscape document (clinic summary, ward board): fonts, footer, page x of y."""
+    """A landscape document (clinic summary, ward board): footer, page x of y. The
+    caller has chosen the fonts (:func:`use_fonts`) before making the story."""
     from reportlab.lib.pagesizes import landscape
 
-    _register_fonts()
     left, right, top, bottom = LANDSCAPE_MARGINS_MM
     buf = io.BytesIO()
     doc = SimpleDocTemplate(
@@ -756,7 +793,7 @@ def build_landscape_pdf(story: list[object], paper: str, title: str, footer: str
         author="airway",
         creator=f"airway {__version__}",
         invariant=1,
-        initialFontName=FONT,
+        initialFontName=font(),
         lang="en-GB",
     )
 
@@ -876,7 +913,7 @@ def _sections_that_fit(
 
 def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
     """The plan as PDF bytes: one page up to airway level 2, two at most."""
-    _register_fonts()
+    use_fonts(plan)
     st = _styles()
     size = PAPER[paper]
     g = plan.generated_by
@@ -920,7 +957,7 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
             # Read back by `airway verify`: which rules and which assessment made it.
             subject=traceability_subject(plan),
             invariant=1,
-            initialFontName=FONT,
+            initialFontName=font(),
             lang="en-GB",
         )
         try:

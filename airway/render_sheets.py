@@ -32,7 +32,7 @@ from reportlab.platypus import (
 from . import __version__
 from .markup import escape
 from .plan import RULES_VERSION
-from .render_pdf import FONT, FONT_BOLD, MIN_FONT_PT, _register_fonts
+from .render_pdf import MIN_FONT_PT, font, use_fonts
 from .sheets import BAND_HEIGHTS_CM, Sheet
 
 PAPERS = {"A4": A4, "A3": A3, "letter": letter, "tabloid": TABLOID}
@@ -55,7 +55,7 @@ def sheet_styles(paper: str, k: float | None = None) -> dict[str, ParagraphStyle
     k = SCALE[paper] if k is None else k
     body = ParagraphStyle(
         "body",
-        fontName=FONT,
+        fontName=font(),
         fontSize=BODY_PT_A4 * k,
         leading=BODY_PT_A4 * k * 1.18,
         textColor=colors.black,
@@ -65,7 +65,7 @@ def sheet_styles(paper: str, k: float | None = None) -> dict[str, ParagraphStyle
         "title": ParagraphStyle(
             "title",
             parent=body,
-            fontName=FONT_BOLD,
+            fontName=font(bold=True),
             fontSize=20 * k,
             leading=24 * k,
             textColor=colors.white,
@@ -73,15 +73,17 @@ def sheet_styles(paper: str, k: float | None = None) -> dict[str, ParagraphStyle
         "h2": ParagraphStyle(
             "h2",
             parent=body,
-            fontName=FONT_BOLD,
+            fontName=font(bold=True),
             fontSize=17 * k,
             leading=19 * k,
             spaceBefore=4 * k,
             spaceAfter=1.5 * k,
             textColor=NAVY,
         ),
-        "cell": ParagraphStyle("cell", parent=body, fontName=FONT_BOLD),
-        "white": ParagraphStyle("white", parent=body, fontName=FONT_BOLD, textColor=colors.white),
+        "cell": ParagraphStyle("cell", parent=body, fontName=font(bold=True)),
+        "white": ParagraphStyle(
+            "white", parent=body, fontName=font(bold=True), textColor=colors.white
+        ),
     }
 
 
@@ -95,7 +97,7 @@ def _bar(text: str, width: float, st: dict[str, ParagraphStyle]) -> Table:
         TableStyle(
             [
                 ("BACKGROUND", (0, 0), (-1, -1), NAVY),
-                ("FONTNAME", (0, 0), (-1, -1), FONT),
+                ("FONTNAME", (0, 0), (-1, -1), font()),
                 ("TOPPADDING", (0, 0), (-1, -1), 6),
                 ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
             ]
@@ -114,7 +116,7 @@ def _table(
 ) -> Table:
     t = Table(rows, colWidths=widths, rowHeights=heights, repeatRows=1 if header else 0)
     style = [
-        ("FONTNAME", (0, 0), (-1, -1), FONT),
+        ("FONTNAME", (0, 0), (-1, -1), font()),
         ("FONTSIZE", (0, 0), (-1, -1), BODY_PT_A4 * k),
         ("LEADING", (0, 0), (-1, -1), BODY_PT_A4 * k * 1.15),
         ("VALIGN", (0, 0), (-1, -1), "MIDDLE"),
@@ -126,7 +128,7 @@ def _table(
         style += [
             ("BACKGROUND", (0, 0), (-1, 0), NAVY),
             ("TEXTCOLOR", (0, 0), (-1, 0), colors.white),
-            ("FONTNAME", (0, 0), (-1, 0), FONT_BOLD),
+            ("FONTNAME", (0, 0), (-1, 0), font(bold=True)),
         ]
     if shade:
         style.append(("ROWBACKGROUNDS", (0, 1), (-1, -1), [colors.white, SHADE]))
@@ -179,7 +181,7 @@ def _month_grid(width: float, st: dict[str, ParagraphStyle], k: float) -> list:
     first = 30 * mm * k
     # As many days to a row as fit with their numbers clear of the rules: 16 across a
     # portrait page, fewer in a landscape column (where 16 ran together).
-    day = pdfmetrics.stringWidth("31", FONT_BOLD, BODY_PT_A4 * k) + 2 * CELL_PADDING_PT + 2
+    day = pdfmetrics.stringWidth("31", font(bold=True), BODY_PT_A4 * k) + 2 * CELL_PADDING_PT + 2
     fit = max(1, min(16, int((width - first) // day)))
     rows_needed = -(-31 // fit)
     per_row = -(-31 // rows_needed)  # rows as even as they can be: 16 + 15, 8 + 8 + 8 + 7
@@ -204,9 +206,9 @@ def _measured_widths(
     for c in range(len(rows[0])):
         widest = 0.0
         for r, row in enumerate(rows):
-            font = FONT_BOLD if r == 0 or c == 0 else FONT
+            face = font(bold=r == 0 or c == 0)
             for line in str(row[c]).split("\n"):
-                widest = max(widest, pdfmetrics.stringWidth(line, font, size))
+                widest = max(widest, pdfmetrics.stringWidth(line, face, size))
         text.append(widest)
     over = sum(text) + 2 * CELL_PADDING_PT * len(text) - width
     padding = max(MIN_CELL_PADDING_PT, CELL_PADDING_PT - max(0.0, over) / (2 * len(text)))
@@ -246,7 +248,7 @@ def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) 
         TableStyle(
             [
                 ("ALIGN", (1, 0), (-1, -1), "CENTER"),
-                ("FONTNAME", (0, 1), (0, -1), FONT_BOLD),
+                ("FONTNAME", (0, 1), (0, -1), font(bold=True)),
                 ("LEFTPADDING", (0, 0), (-1, -1), padding),
                 ("RIGHTPADDING", (0, 0), (-1, -1), padding),
             ]
@@ -259,7 +261,7 @@ def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) 
 
 def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) -> bytes:
     """One trolley sheet as PDF bytes: one page, in the largest type that fits it."""
-    _register_fonts()
+    use_fonts(sheet)
     pdf, pages = b"", 0
     for step in FIT_STEPS:
         k = SCALE[paper] * step
@@ -288,7 +290,7 @@ def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes
         author="airway",
         creator=f"airway {__version__}",
         invariant=1,
-        initialFontName=FONT,
+        initialFontName=font(),
         lang="en-GB",
     )
     columns = 2 if landscape_ and sheet.kind != "doses" else 1
@@ -320,7 +322,7 @@ def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes
 
     def on_page(canvas: Any, doc_: Any) -> None:
         footer_pt = max(MIN_FONT_PT, 8 * k)
-        canvas.setFont(FONT, footer_pt)
+        canvas.setFont(font(), footer_pt)
         canvas.drawString(margin, margin + 1.25 * footer_pt, footer)
         canvas.drawString(margin, margin, footer2)
         canvas.drawRightString(size[0] - margin, margin, f"page {doc_.page}")

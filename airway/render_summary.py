@@ -14,13 +14,13 @@ from .clinic import FLAG_RULES, SummaryRow, sort_summary
 from .markup import escape
 from .plan import CAUTION_AID, CAUTION_REASSESS, RULES_VERSION
 from .render_pdf import (
-    FONT_BOLD,
     _grid,
     _p,
-    _register_fonts,
     _styles,
     build_landscape_pdf,
+    font,
     landscape_width,
+    use_fonts,
 )
 from .scoring import LEVEL_LABELS
 from .sources import source_label
@@ -34,7 +34,7 @@ FLAG_WORDS = {
 
 def render_summary_pdf(rows: list[SummaryRow], paper: str = "A4") -> bytes:
     """The summary table as PDF bytes (one page when it fits)."""
-    _register_fonts()  # paragraphs resolve bold and regular faces as they are made
+    use_fonts(rows)  # before any paragraph: they resolve their faces as made
     st = _styles()
     small = st["small"]
     width = landscape_width(paper)
@@ -65,7 +65,7 @@ def render_summary_pdf(rows: list[SummaryRow], paper: str = "A4") -> bytes:
     grid = _grid(table, [width * f for f in fractions])
     for i, r in enumerate(ordered, start=1):
         if r.level is None:
-            grid.setStyle([("SPAN", (2, i), (7, i)), ("FONTNAME", (1, i), (1, i), FONT_BOLD)])
+            grid.setStyle([("SPAN", (2, i), (7, i)), ("FONTNAME", (1, i), (1, i), font(bold=True))])
     rules = " ".join(
         f"<b>{escape(FLAG_WORDS[k])}</b>: {escape(text)} "
         f"({escape(source_label(e.source, e.basis))})."

@@ -14,6 +14,7 @@ from airway import build_plan
 from airway.checklists import load_checklists
 from airway.cli import app
 from airway.equipment import load_catalogue
+from airway.pdf_fonts import BUNDLED
 from airway.render_sheets import BODY_PT_A4, render_sheet_pdf, sheet_styles
 from airway.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
 from airway.units import load_contacts
@@ -176,7 +177,7 @@ def test_month_grid_day_numbers_clear_of_the_rules(monkeypatch) -> None:
             assert days == [str(d) for d in range(1, 32)]  # every day, once, in order
             for header, widths in grids:
                 for day, width in zip(header[1:], widths[1:], strict=True):
-                    text = pdfmetrics.stringWidth(day, "DejaVuSans-Bold", size)
+                    text = pdfmetrics.stringWidth(day, BUNDLED.bold, size)
                     assert text + 2 * rs.CELL_PADDING_PT <= width, (paper, landscape, day)
 
 
@@ -267,7 +268,7 @@ def test_dose_table_words_clear_of_the_rules_and_inside_the_page(
     size = sheet_styles(paper)["body"].fontSize
     for r, row in enumerate(rows):
         for c, (cell, width) in enumerate(zip(row, widths, strict=True)):
-            font = "DejaVuSans-Bold" if r == 0 or c == 0 else "DejaVuSans"
+            font = BUNDLED.bold if r == 0 or c == 0 else BUNDLED.regular
             for line in str(cell).split("\n"):
                 room = width - 2 * rs.MIN_CELL_PADDING_PT
                 assert pdfmetrics.stringWidth(line, font, size) <= room, (line, paper)
