@@ -17,6 +17,8 @@ uncertainty, never a guarantee; the plan says so.
 from __future__ import annotations
 
 import math
+import os
+from collections.abc import Callable
 from typing import NamedTuple
 
 from .assessment import Assessment
@@ -227,11 +229,50 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     """Integrate apnoea from the end of pre-oxygenation.
 
     ``curve=False`` skips recording the SpO2 curve (only the threshold times are
-    wanted); the times are the same either way. The loop is written out by hand
-    (no function calls per step) because a clinic list runs it thousands of times;
-    every expression keeps the order of operations of :func:`saturation` and the
-    model's equations, so the figures are those of the plain form to the last bit.
+    wanted); the times are the same either way. The time loop runs compiled when
+    ``airway._apnoea`` is built (a clinic list runs it thousands of times), else in
+    Python (:func:`loop_python`); the two give the same figures to the last bit.
     """
+    state = start_state(p)
+    run = _compiled_loop if _compiled_loop is not None else loop_python
+    t95, t90, t80, raw = run(state, _LOOP_CONSTANTS, horizon_min * 60.0, curve, CURVE_EVERY_S)
+    points = tuple((seconds, round(100 * sao2, 1)) for seconds, sao2 in raw)
+    return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=points)
+
+
+class LoopState(NamedTuple):
+    """Where apnoea starts, and the per-step quantities worked out once."""
+
+    v_o2: float  # mL of O2 in the lung
+    v_n2: float  # mL of nitrogen (and other inert gas) in the lung
+    pool: float  # mL of O2 held in the mixed blood pool
+    hb_cap: float  # mL O2 per L of blood at full saturation
+    flow: float  # non-shunted blood flow, L/s
+    kept: float  # non-shunted fraction
+    shunt: float
+    blood_volume_l: float
+    p50: float
+    o2_in: float  # change of lung O2 per mL taken up (gas drawn in from the pharynx)
+    n2_in: float
+    paco2_start: float
+    dry: float  # dry gas pressure, mmHg
+    used_long: float  # mL O2 the body uses in a long step
+    used_short: float
+
+
+# The loop's constants, handed to either loop (the compiled one has none of its own).
+_LOOP_CONSTANTS = (
+    SEVERINGHAUS_P50_MMHG,
+    O2_SOLUBILITY_ML_PER_L_PER_MMHG,
+    PACO2_RISE_MMHG_PER_MIN,
+    STEP_S,
+    STEP_LONG_S,
+    STEP_LONG_ABOVE,
+)
+
+
+def start_state(p: Physiology) -> LoopState:
+    """The lung and blood at the end of pre-oxygenation, in steady state."""
     dry = BAROMETRIC_MMHG - WATER_VAPOUR_MMHG
     hb_cap = HUFNER_ML_PER_G * p.haemoglobin_g_per_l  # mL O2 per L at full saturation
     q = p.cardiac_output_l_per_min / 60.0  # L/s
@@ -244,40 +285,73 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     pao2 = (dry - p.paco2_mmhg) * v_o2 / (v_o2 + v_n2)
     cc = hb_cap * saturation(pao2, p.p50_mmhg) + O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
     # Steady state before apnoea: venous content = arterial content - VO2 / Q.
-    cv = 0.0
+    cv, shunt, kept = 0.0, p.shunt, 1 - p.shunt  # kept: the non-shunted fraction
+    drawn = vo2 / q
     for _ in range(30):  # fixed point for Ca with shunt
-        ca = (1 - p.shunt) * cc + p.shunt * cv
-        last, cv = cv, max(0.0, ca - vo2 / q)
+        ca = kept * cc + shunt * cv
+        last, cv = cv, (ca - drawn if ca - drawn > 0.0 else 0.0)  # max(0, ca - VO2 / Q)
         if cv == last:  # reached: every further round gives the same value
             break
-    pool = cv * p.blood_volume_l  # mL O2 held in the mixed pool
+    return LoopState(
+        v_o2=v_o2,
+        v_n2=v_n2,
+        pool=cv * p.blood_volume_l,
+        hb_cap=hb_cap,
+        flow=q * kept,  # q * (1 - shunt), as the uptake multiplies it
+        kept=kept,
+        shunt=p.shunt,
+        blood_volume_l=p.blood_volume_l,
+        p50=p.p50_mmhg,
+        o2_in=p.pharyngeal_fo2 - 1.0,
+        n2_in=1.0 - p.pharyngeal_fo2,
+        paco2_start=p.paco2_mmhg,
+        dry=dry,
+        used_long=vo2 * STEP_LONG_S,
+        used_short=vo2 * STEP_S,
+    )
+
+
+RawCourse = tuple[float | None, float | None, float | None, list[tuple[int, float]]]
+
+
+def loop_python(
+    state: LoopState,
+    constants: tuple[float, ...],
+    horizon_s: float,
+    curve: bool,
+    curve_every: float,
+) -> RawCourse:
+    """The time loop: seconds to SaO2 95%, 90% and 80% (None: not within the
+    horizon) and the curve's (seconds, SaO2 0-1) points.
+
+    Written out by hand (no function calls per step); every expression keeps the
+    order of operations of :func:`saturation` and the model's equations, so the
+    figures are those of the plain form to the last bit. ``airway/_apnoea.c`` is
+    this function in C, line for line: change both together.
+    """
+    v_o2, v_n2, pool, hb_cap, flow, kept, shunt, bv, p50 = state[:9]
+    o2_in, n2_in, paco2_start, dry, use_long, use_short = state[9:]
+    severinghaus_p50, solubility, rise, step_s, step_long_s, long_above = constants
     t95 = t90 = t80 = None
     points: list[tuple[int, float]] = []
-    horizon_s = horizon_min * 60.0
-    shunt, bv, p50 = p.shunt, p.blood_volume_l, p.p50_mmhg
-    kept = 1 - shunt  # the non-shunted fraction
-    flow = q * kept  # q * (1 - shunt), as the uptake below multiplies it
-    o2_in, n2_in = p.pharyngeal_fo2 - 1.0, 1.0 - p.pharyngeal_fo2
-    paco2_start, solubility = p.paco2_mmhg, O2_SOLUBILITY_ML_PER_L_PER_MMHG
-    use_long, use_short = vo2 * STEP_LONG_S, vo2 * STEP_S
     t = 0.0
     next_point = 0.0 if curve else math.inf
     while t <= horizon_s:
         late = t / 60.0 - 1.0
-        paco2 = paco2_start + PACO2_RISE_MMHG_PER_MIN * late if late > 0.0 else paco2_start
+        paco2 = paco2_start + rise * late if late > 0.0 else paco2_start
         total = v_o2 + v_n2
         pao2 = (dry - paco2) * v_o2 / total if total > 0 else 0.0
         if not pao2 > 0.0:
             pao2 = 0.0
-        sp = pao2 * SEVERINGHAUS_P50_MMHG / p50
+        sp = pao2 * severinghaus_p50 / p50
         sc = 1.0 / (23400.0 / (sp**3 + 150.0 * sp) + 1.0) if sp > 0 else 0.0
         cc = hb_cap * sc + solubility * pao2
         cv = pool / bv
         venous = cv / hb_cap
         sao2 = kept * sc + shunt * (venous if venous < 1.0 else 1.0)
         if t >= next_point:
-            points.append((int(t), round(100 * sao2, 1)))
-            next_point += CURVE_EVERY_S
+            points.append((int(t), sao2))
+            next_point += curve_every
         if sao2 < 0.95:
             if t95 is None:
                 t95 = t
@@ -287,11 +361,11 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
                 if sao2 < 0.80:
                     t80 = t
                     break
-        # Long steps while saturation is high and changes slowly, 1 s near the thresholds.
-        if sao2 > STEP_LONG_ABOVE:
-            dt, used = STEP_LONG_S, use_long
+        # Long steps while saturation is high and changes slowly, short near the thresholds.
+        if sao2 > long_above:
+            dt, used = step_long_s, use_long
         else:
-            dt, used = STEP_S, use_short
+            dt, used = step_s, use_short
         uptake = flow * (cc - cv)
         uptake = (uptake if uptake > 0.0 else 0.0) * dt  # mL this step
         if not uptake < v_o2:
@@ -303,7 +377,26 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
         if not pool > 0.0:
             pool = 0.0
         t += dt
-    return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=tuple(points))
+    return t95, t90, t80, points
+
+
+def _load_compiled() -> Callable[..., RawCourse] | None:
+    """The compiled loop, unless it is not built or AIRWAY_PURE_PYTHON is set."""
+    if os.environ.get("AIRWAY_PURE_PYTHON"):
+        return None
+    try:
+        from ._apnoea import run
+    except ImportError:
+        return None
+    return run
+
+
+_compiled_loop = _load_compiled()
+
+
+def compiled() -> bool:
+    """Whether the apnoea model runs compiled in this process."""
+    return _compiled_loop is not None
 
 
 class Scenario(NamedTuple):

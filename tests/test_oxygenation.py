@@ -224,13 +224,26 @@ def _plain_simulate(p, horizon_min: float = 20.0) -> tuple:  # type: ignore[no-u
     return marks.get(0.95), marks.get(0.90), marks.get(0.80), tuple(curve)
 
 
-def test_hand_written_loop_gives_the_plain_equations_figures_exactly() -> None:
+LOOPS = ["python", "compiled"]
+
+
+@pytest.mark.parametrize("loop", LOOPS)
+def test_hand_written_loop_gives_the_plain_equations_figures_exactly(
+    loop: str, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """Both time loops, the Python one and the compiled one, give the figures of the
+    model's plain equations to the last bit."""
     import random
 
+    from airway import oxygenation
     from airway.oxygenation import physiology, simulate
 
+    if loop == "python":
+        monkeypatch.setattr(oxygenation, "_compiled_loop", None)
+    elif not oxygenation.compiled():
+        pytest.skip("airway._apnoea is not built here (no C compiler at install)")
     rng = random.Random(20261202)
-    for _ in range(150):
+    for _ in range(600):
         p = physiology(
             weight_kg=rng.uniform(35, 250),
             height_cm=rng.uniform(125, 205),
@@ -247,3 +260,29 @@ def test_hand_written_loop_gives_the_plain_equations_figures_exactly() -> None:
         quiet = simulate(p, curve=False)
         assert (quiet.seconds_to_95, quiet.seconds_to_90, quiet.seconds_to_80) == fast[:3]
         assert quiet.curve == ()
+
+
+def test_compiled_loop_is_built_where_asked() -> None:
+    """CI builds the compiled loop (.ci/run sets AIRWAY_REQUIRE_COMPILED): a broken
+    build must fail there, not pass silently on the slower Python loop."""
+    import os
+
+    from airway import oxygenation
+
+    if not os.environ.get("AIRWAY_REQUIRE_COMPILED"):
+        pytest.skip("only where AIRWAY_REQUIRE_COMPILED is set")
+    assert oxygenation.compiled()
+
+
+def test_compiled_loop_refuses_a_bad_call() -> None:
+    """A wrong call is a TypeError, never a crash of the process."""
+    from airway import oxygenation
+
+    if not oxygenation.compiled():
+        pytest.skip("airway._apnoea is not built here")
+    from airway import _apnoea
+
+    with pytest.raises(TypeError):
+        _apnoea.run((1.0, 2.0), (), 60.0, True, 10.0)  # a state of 2, not 15
+    with pytest.raises(TypeError):
+        _apnoea.run()  # type: ignore[call-arg]
