@@ -31,7 +31,7 @@ import re
 from collections.abc import Callable
 from importlib import resources
 from pathlib import Path
-from typing import Any
+from typing import Any, NamedTuple
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
@@ -384,20 +384,64 @@ def _fill(text: str, plan: Plan | None, front_of_neck_tube_mm: float) -> str:
     return _VALUE.sub(value, text)
 
 
+PlanValue = Callable[[Plan], str]
+
+
+class _Ready(NamedTuple):
+    """One item made ready to fill: its condition, and its text as pieces, each a
+    string or a function of the plan (a value)."""
+
+    condition: Condition | None
+    pieces: tuple[str | PlanValue, ...]
+    checkbox: bool
+    fixed: RenderedItem | None  # the whole item, when its text holds no value
+
+
+def _value_of(name: str) -> PlanValue:
+    if name in UNIT_VALUES:
+        unit_value = UNIT_VALUES[name][1]
+        return lambda plan: unit_value(plan.equipment.front_of_neck_tube_mm)
+    return VALUES[name][1]
+
+
+def _ready(item: Item) -> _Ready:
+    # split() with one group gives text, name, text, name, ..., text.
+    parts = _VALUE.split(item.text)
+    pieces = tuple(
+        _value_of(part) if n % 2 else part for n, part in enumerate(parts) if n % 2 or part
+    )
+    fixed = RenderedItem(text=item.text, checkbox=item.checkbox) if len(parts) == 1 else None
+    return _Ready(condition=item.condition, pieces=pieces, checkbox=item.checkbox, fixed=fixed)
+
+
+# Each checklist made ready once per process (a clinic list fills the same ones for
+# every woman), keyed by identity; the checklist is kept so its id is never reused.
+_READY: dict[int, tuple[Checklist, tuple[tuple[str, tuple[_Ready, ...]], ...]]] = {}
+
+
+def _ready_sections(checklist: Checklist) -> tuple[tuple[str, tuple[_Ready, ...]], ...]:
+    entry = _READY.get(id(checklist))
+    if entry is None or entry[0] is not checklist:
+        ready = tuple((s.title, tuple(_ready(i) for i in s.items)) for s in checklist.sections)
+        entry = _READY[id(checklist)] = (checklist, ready)
+    return entry[1]
+
+
 def for_plan(checklist: Checklist, plan: Plan) -> RenderedChecklist:
     """Apply conditions and fill values for one woman's plan."""
     sections = []
-    for s in checklist.sections:
+    for title, ready in _ready_sections(checklist):
         items = tuple(
-            RenderedItem(
-                text=_fill(i.text, plan, plan.equipment.front_of_neck_tube_mm),
-                checkbox=i.checkbox,
+            r.fixed
+            or RenderedItem(
+                text="".join(p if isinstance(p, str) else p(plan) for p in r.pieces),
+                checkbox=r.checkbox,
             )
-            for i in s.items
-            if i.condition is None or i.condition.holds(plan)
+            for r in ready
+            if r.condition is None or r.condition.holds(plan)
         )
         if items:
-            sections.append(RenderedSection(title=s.title, items=items))
+            sections.append(RenderedSection(title=title, items=items))
     return RenderedChecklist(
         title=checklist.meta.title, sheet=checklist.meta.sheet, sections=tuple(sections)
     )

@@ -130,6 +130,8 @@ CONSTANT_EVIDENCE: dict[str, Evidence] = {
     "FEO2_DEFAULT": Evidence("tanoubi2009", "published"),
 }
 
+MODEL_BASIS = tuple(e.describe() for e in MODEL_EVIDENCE)
+
 UNCERTAINTY = (
     "Desaturation times are a model estimate, not a guarantee, and real times vary "
     "widely: act on the saturation, never the clock."
@@ -233,7 +235,10 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     ``airway._apnoea`` is built (a clinic list runs it thousands of times), else in
     Python (:func:`loop_python`); the two give the same figures to the last bit.
     """
-    state = start_state(p)
+    return _course(start_state(p), horizon_min, curve)
+
+
+def _course(state: LoopState, horizon_min: float = HORIZON_MIN, curve: bool = True) -> Course:
     run = _compiled_loop if _compiled_loop is not None else loop_python
     t95, t90, t80, raw = run(state, _LOOP_CONSTANTS, horizon_min * 60.0, curve, CURVE_EVERY_S)
     points = tuple((seconds, round(100 * sao2, 1)) for seconds, sao2 in raw)
@@ -479,8 +484,14 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
     )
     scenarios = []
     curve: tuple[tuple[int, float], ...] = ()
+    start = start_state(base)
     for cid, label, phys in cases:
-        course = simulate(phys, curve=cid == "as_assessed")
+        if phys.feo2 == base.feo2:
+            # Nasal O2 changes only the gas drawn in during apnoea: the start is the same.
+            state = start._replace(o2_in=phys.pharyngeal_fo2 - 1.0, n2_in=1.0 - phys.pharyngeal_fo2)
+        else:
+            state = start_state(phys)
+        course = _course(state, curve=cid == "as_assessed")
         if cid == "as_assessed":
             curve, first = course.curve, course
         scenarios.append(
@@ -512,5 +523,5 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         },
         assumptions=tuple(assumptions),
         uncertainty=UNCERTAINTY,
-        basis=tuple(e.describe() for e in MODEL_EVIDENCE),
+        basis=MODEL_BASIS,
     )

@@ -96,28 +96,11 @@ class _Fixed(NamedTuple):
     log_weight: float  # what one unit of a present finding adds to the index
     source_short: str
     evidence: str
+    absent: FactorResult  # the whole result when the finding is absent
+    unassessed: FactorResult  # ... and when it was not assessed
 
 
-def _fixed(factor: Factor) -> _Fixed:
-    return _Fixed(
-        log_weight=factor.log_weight,
-        source_short=SOURCES[factor.evidence.source].short,
-        evidence=factor.evidence.describe(),
-    )
-
-
-# The catalogue with each factor's fixed parts: a clinic list scores thousands of women.
-_SCORED: tuple[tuple[Factor, _Fixed], ...] = tuple((f, _fixed(f)) for f in CATALOGUE)
-
-
-def _evaluate(
-    factor: Factor, fixed: _Fixed, assessment: Assessment, body: BodySize
-) -> FactorResult:
-    reading = factor.read(assessment, body)
-    present = reading.present
-    contribution = 0.0
-    if present and factor.role == "difficulty":
-        contribution = round(fixed.log_weight * reading.units, 4)
+def _result(factor: Factor, present: bool | None, contribution: float, detail: str) -> FactorResult:
     return FactorResult(
         id=factor.id,
         label=factor.label,
@@ -126,13 +109,41 @@ def _evaluate(
         present=present,
         weight=factor.weight,
         contribution=contribution,
-        detail=reading.detail if present else "",
+        detail=detail,
         source=factor.evidence.source,
-        source_short=fixed.source_short,
+        source_short=SOURCES[factor.evidence.source].short,
         basis=factor.evidence.basis,
-        evidence=fixed.evidence,
+        evidence=factor.evidence.describe(),
         prepares=factor.prepares,
     )
+
+
+def _fixed(factor: Factor) -> _Fixed:
+    return _Fixed(
+        log_weight=factor.log_weight,
+        source_short=SOURCES[factor.evidence.source].short,
+        evidence=factor.evidence.describe(),
+        absent=_result(factor, False, 0.0, ""),
+        unassessed=_result(factor, None, 0.0, ""),
+    )
+
+
+# The catalogue with each factor's fixed parts: a clinic list scores thousands of women,
+# and most factors are absent or not assessed in each, so their results are made once.
+_SCORED: tuple[tuple[Factor, _Fixed], ...] = tuple((f, _fixed(f)) for f in CATALOGUE)
+
+
+def _evaluate(
+    factor: Factor, fixed: _Fixed, assessment: Assessment, body: BodySize
+) -> FactorResult:
+    reading = factor.read(assessment, body)
+    present = reading.present
+    if not present:
+        return fixed.unassessed if present is None else fixed.absent
+    contribution = 0.0
+    if factor.role == "difficulty":
+        contribution = round(fixed.log_weight * reading.units, 4)
+    return fixed.absent._replace(present=True, contribution=contribution, detail=reading.detail)
 
 
 def score(assessment: Assessment, body: BodySize) -> Risk:
