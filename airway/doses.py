@@ -6,6 +6,7 @@ Where sources disagree on the scalar, the dose carries the alternatives.
 
 from __future__ import annotations
 
+import functools
 from typing import Literal, NamedTuple
 
 from .body import BodySize
@@ -208,13 +209,17 @@ def dose_text(d: Dose) -> str:
     return f"{mg_text(d)} ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
 
 
+_SCALAR_FIELD = {
+    "total": "weight_kg",
+    "lean": "lean_weight_kg",
+    "ideal": "ideal_weight_kg",
+    "adjusted": "adjusted_weight_kg",
+}
+
+
 def _weight(body: BodySize, scalar: Scalar) -> float | None:
-    return {
-        "total": body.weight_kg,
-        "lean": body.lean_weight_kg,
-        "ideal": body.ideal_weight_kg,
-        "adjusted": body.adjusted_weight_kg,
-    }[scalar]
+    weight: float | None = getattr(body, _SCALAR_FIELD[scalar])
+    return weight
 
 
 def _mg(mg_per_kg: float, kg: float) -> float:
@@ -235,6 +240,18 @@ def _alternative(low: float, high: float, scalar: Scalar, kg: float, source: str
         dose_mg_high=_mg(high, kg),
         source=source,
     )
+
+
+@functools.cache  # the same few sentences for every woman: made once
+def _basis(drug: Drug, held: bool) -> str:
+    evidence: tuple[Evidence, ...] = (
+        drug.dose_evidence,
+        drug.scalar_evidence,
+        drug.concentration_evidence,
+    )
+    if held:
+        evidence += (CONTINUITY_EVIDENCE,)
+    return "; ".join(e.describe() for e in evidence)
 
 
 def compute_dose(drug: Drug, body: BodySize) -> Dose:
@@ -272,14 +289,7 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
             alt_kg = _weight(body, scalar)
             if alt_kg is not None:
                 alternatives.append(_alternative(low, high, scalar, alt_kg, source))
-    evidence: tuple[Evidence, ...] = (
-        drug.dose_evidence,
-        drug.scalar_evidence,
-        drug.concentration_evidence,
-    )
-    if held_from is not None:
-        evidence += (CONTINUITY_EVIDENCE,)
-    basis = "; ".join(e.describe() for e in evidence)
+    basis = _basis(drug, held=held_from is not None)
     return Dose(
         drug=drug.name,
         label=drug.label,

@@ -175,6 +175,29 @@ def nadler_blood_volume_l(height_cm: float, weight_kg: float) -> float:
     return a * (height_cm / 100.0) ** 3 + b * weight_kg + c
 
 
+def _bmi_above_reference(weight_kg: float, height_cm: float) -> float:
+    """kg/m² of BMI above the reference at which lung volume starts to fall."""
+    return max(0.0, weight_kg / (height_cm / 100.0) ** 2 - FRC_BMI_REFERENCE)
+
+
+def _glottic_fo2(nasal_fo2: float, bmi_above_reference: float) -> float:
+    """The O2 fraction that reaches the glottis from the pharynx during apnoea: nasal
+    O2 falls towards room air as the upper airway closes with obesity."""
+    if nasal_fo2 <= FO2_ROOM_AIR:
+        return nasal_fo2
+    patency = math.exp(-NASAL_PATENCY_DECAY_PER_BMI_UNIT * bmi_above_reference)
+    return FO2_ROOM_AIR + (nasal_fo2 - FO2_ROOM_AIR) * patency
+
+
+def with_nasal_o2(
+    base: Physiology, nasal_fo2: float, weight_kg: float, height_cm: float
+) -> Physiology:
+    """``base`` with nasal O2 through apnoea: the same as :func:`physiology` with
+    ``pharyngeal_fo2=nasal_fo2`` for the same woman, without working it all out again."""
+    above = _bmi_above_reference(weight_kg, height_cm)
+    return base._replace(pharyngeal_fo2=_glottic_fo2(nasal_fo2, above))
+
+
 def physiology(
     weight_kg: float,
     height_cm: float,
@@ -186,8 +209,7 @@ def physiology(
     pharyngeal_fo2: float = FO2_ROOM_AIR,
 ) -> Physiology:
     """Derive the model's inputs from body size and the state of pregnancy."""
-    bmi = weight_kg / (height_cm / 100.0) ** 2
-    above = max(0.0, bmi - FRC_BMI_REFERENCE)
+    above = _bmi_above_reference(weight_kg, height_cm)
     frc = predicted_frc_upright_ml(height_cm, age_years) * FRC_SUPINE_ANAESTHETISED_FACTOR
     frc *= math.exp(-FRC_BMI_DECAY_PER_UNIT * above)
     vo2 = VO2_ML_PER_MIN_PER_KG075 * weight_kg**0.75
@@ -200,9 +222,7 @@ def physiology(
         bv *= BLOOD_VOLUME_PREGNANCY_FACTOR
     if in_labour:
         vo2 *= VO2_LABOUR_FACTOR
-    if pharyngeal_fo2 > FO2_ROOM_AIR:
-        patency = math.exp(-NASAL_PATENCY_DECAY_PER_BMI_UNIT * above)
-        pharyngeal_fo2 = FO2_ROOM_AIR + (pharyngeal_fo2 - FO2_ROOM_AIR) * patency
+    pharyngeal_fo2 = _glottic_fo2(pharyngeal_fo2, above)
     hb = haemoglobin_g_per_l or (HB_PREGNANT_G_PER_L if pregnant else HB_NON_PREGNANT_G_PER_L)
     return Physiology(
         frc_ml=frc,
@@ -474,12 +494,12 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         (
             "nasal_low_flow",
             "plus low-flow nasal O2 through apnoea",
-            physiology(*args, feo2, FO2_NASAL_LOW_FLOW),
+            with_nasal_o2(base, FO2_NASAL_LOW_FLOW, pt.weight_kg, height),
         ),
         (
             "nasal_high_flow",
             "plus high-flow nasal O2 through apnoea",
-            physiology(*args, feo2, FO2_NASAL_HIGH_FLOW),
+            with_nasal_o2(base, FO2_NASAL_HIGH_FLOW, pt.weight_kg, height),
         ),
     )
     scenarios = []

@@ -72,14 +72,13 @@ CAUTION_WEAK_TESTS = (
 )
 
 
+# The canonical form: sorted keys, no spaces, text as written (one encoder, made once).
+_CANONICAL = json.JSONEncoder(sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+
+
 def assessment_digest(assessment: Assessment) -> str:
     """SHA-256 of the assessment's canonical JSON: the same findings, the same digest."""
-    canonical = json.dumps(
-        assessment.model_dump(mode="json"),
-        sort_keys=True,
-        separators=(",", ":"),
-        ensure_ascii=False,
-    )
+    canonical = _CANONICAL.encode(assessment.model_dump(mode="json"))
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
 

@@ -286,3 +286,53 @@ def test_compiled_loop_refuses_a_bad_call() -> None:
         _apnoea.run((1.0, 2.0), (), 60.0, True, 10.0)  # a state of 2, not 15
     with pytest.raises(TypeError):
         _apnoea.run()  # type: ignore[call-arg]
+
+
+@given(
+    st.floats(35, 250),
+    st.floats(125, 205),
+    st.sampled_from([0.21, 0.5, 1.0, 0.35]),
+    st.booleans(),
+)
+def test_nasal_o2_from_the_base_equals_working_it_all_out(weight, height, fo2, labour) -> None:
+    """The scenarios derive nasal O2 from the woman's base physiology: it must be the
+    same physiology, to the last bit, as working it out from scratch."""
+    from airway.oxygenation import physiology, with_nasal_o2
+
+    base = physiology(weight, height, in_labour=labour)
+    direct = physiology(weight, height, in_labour=labour, pharyngeal_fo2=fo2)
+    assert with_nasal_o2(base, fo2, weight, height) == direct
+
+
+@settings(max_examples=60)
+@given(st.floats(40, 200), st.floats(140, 190), st.booleans())
+def test_scenarios_equal_each_worked_out_from_scratch(weight, height, labour) -> None:
+    """The plan's scenarios share work (one start for the nasal O2 ones): each must give
+    the minutes of its physiology simulated from scratch."""
+    from airway.oxygenation import (
+        FEO2_DEFAULT,
+        FEO2_POOR,
+        FO2_NASAL_HIGH_FLOW,
+        FO2_NASAL_LOW_FLOW,
+        oxygenation_for,
+        physiology,
+        simulate,
+    )
+
+    a = make(patient={"weight_kg": weight, "height_cm": height, "in_labour": labour})
+    got = {s.id: (s.minutes_to_spo2_90, s.minutes_to_spo2_80) for s in oxygenation_for(a).scenarios}
+    kw = {"age_years": float(a.patient.age_years or 30), "in_labour": labour}
+    cases = {
+        "as_assessed": physiology(weight, height, **kw),
+        "poor_preoxygenation": physiology(weight, height, **kw, feo2=FEO2_POOR),
+        "nasal_low_flow": physiology(weight, height, **kw, pharyngeal_fo2=FO2_NASAL_LOW_FLOW),
+        "nasal_high_flow": physiology(weight, height, **kw, pharyngeal_fo2=FO2_NASAL_HIGH_FLOW),
+    }
+    assert cases["as_assessed"].feo2 == FEO2_DEFAULT
+    for cid, phys in cases.items():
+        course = simulate(phys, curve=False)
+        want = tuple(
+            None if s is None else round(s / 60.0, 1)
+            for s in (course.seconds_to_90, course.seconds_to_80)
+        )
+        assert got[cid] == want, cid
