@@ -513,7 +513,7 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
             state = start_state(phys)
         course = _course(state, curve=cid == "as_assessed")
         if cid == "as_assessed":
-            curve, first = course.curve, course
+            curve = course.curve
         scenarios.append(
             Scenario(
                 id=cid,
@@ -524,10 +524,10 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
                 minutes_to_spo2_80=_minutes(course.seconds_to_80),
             )
         )
-    t90 = _minutes(first.seconds_to_90)
+    t90, t80 = scenarios[0].minutes_to_spo2_90, scenarios[0].minutes_to_spo2_80  # as assessed
     return Oxygenation(
         minutes_to_spo2_90=t90,
-        minutes_to_spo2_80=_minutes(first.seconds_to_80),
+        minutes_to_spo2_80=t80,
         horizon_minutes=HORIZON_MIN,
         short=t90 is not None and t90 < SHORT_MINUTES,
         scenarios=tuple(scenarios),

@@ -86,6 +86,74 @@ def _minutes_text(minutes: float | None, horizon: float) -> str:
     return f"more than {horizon:g} min" if minutes is None else f"about {minutes:g} min"
 
 
+# Steps that hold none of her values: made once.
+_POSITION_STEP = Step(
+    id="position",
+    phase="before induction",
+    title="Position",
+    summary="ramp (ear canal level with sternal notch), left tilt about 15°",
+    actions=(
+        "Ramp head-up until the ear canal is level with the sternal notch.",
+        "Left uterine displacement of about 15 degrees (tilt or wedge).",
+    ),
+    basis=POSITION_EVIDENCE.describe(),
+)
+
+
+_ANTACID_STEP = Step(
+    id="antacid",
+    phase="before induction",
+    title="Antacid prophylaxis",
+    summary="antacid: H2 antagonist or PPI, sodium citrate 30 mL",
+    actions=(
+        "H2-receptor antagonist or proton-pump inhibitor given; sodium citrate "
+        "0.3 M 30 mL just before induction.",
+    ),
+    basis=ANTACID_EVIDENCE.describe(),
+)
+
+
+_CRICOID_STEP = Step(
+    id="cricoid",
+    phase="before induction",
+    title="Cricoid force",
+    summary=f"cricoid {CRICOID_AWAKE_N} N awake -> {CRICOID_ASLEEP_N} N asleep; ease if difficult",
+    actions=(
+        f"{CRICOID_AWAKE_N} N while awake, rising to {CRICOID_ASLEEP_N} N once "
+        "consciousness is lost.",
+        "Reduce or release it if laryngoscopy, mask ventilation or supraglottic "
+        "insertion is difficult.",
+    ),
+    basis=CRICOID_EVIDENCE.describe(),
+)
+
+
+_REASSESS_STEP = Step(
+    id="reassess",
+    phase="before induction",
+    title="Reassess the airway now",
+    summary="reassess Mallampati and oedema signs on the table",
+    actions=(
+        "Repeat Mallampati and look for new oedema signs (voice, stridor, "
+        "tongue) on the table before induction.",
+    ),
+)
+
+
+_AFTER_STEP = Step(
+    id="after",
+    phase="after the event",
+    title="After the event",
+    summary="after: airway alert, record, debrief, letter",
+    actions=(
+        "Airway alert recorded in her notes.",
+        "Full record: grades, devices, attempts, what worked.",
+        "Team debrief; incident report per local policy.",
+        "Explain to her, and send a letter to her and her family doctor.",
+    ),
+)
+
+
 def _steps(
     a: Assessment,
     risk: Risk,
@@ -119,17 +187,7 @@ def _steps(
                 "front-of-neck kit.",
             ),
         ),
-        Step(
-            id="position",
-            phase="before induction",
-            title="Position",
-            summary="ramp (ear canal level with sternal notch), left tilt about 15°",
-            actions=(
-                "Ramp head-up until the ear canal is level with the sternal notch.",
-                "Left uterine displacement of about 15 degrees (tilt or wedge).",
-            ),
-            basis=POSITION_EVIDENCE.describe(),
-        ),
+        _POSITION_STEP,
         Step(
             id="preoxygenate",
             phase="before induction",
@@ -146,17 +204,7 @@ def _steps(
             ),
             basis=PREOX_EVIDENCE.describe(),
         ),
-        Step(
-            id="antacid",
-            phase="before induction",
-            title="Antacid prophylaxis",
-            summary="antacid: H2 antagonist or PPI, sodium citrate 30 mL",
-            actions=(
-                "H2-receptor antagonist or proton-pump inhibitor given; sodium citrate "
-                "0.3 M 30 mL just before induction.",
-            ),
-            basis=ANTACID_EVIDENCE.describe(),
-        ),
+        _ANTACID_STEP,
         Step(
             id="drugs",
             phase="before induction",
@@ -169,30 +217,8 @@ def _steps(
                 "Vasopressor drawn up.",
             ),
         ),
-        Step(
-            id="cricoid",
-            phase="before induction",
-            title="Cricoid force",
-            summary=f"cricoid {CRICOID_AWAKE_N} N awake -> {CRICOID_ASLEEP_N} N asleep; "
-            "ease if difficult",
-            actions=(
-                f"{CRICOID_AWAKE_N} N while awake, rising to {CRICOID_ASLEEP_N} N once "
-                "consciousness is lost.",
-                "Reduce or release it if laryngoscopy, mask ventilation or supraglottic "
-                "insertion is difficult.",
-            ),
-            basis=CRICOID_EVIDENCE.describe(),
-        ),
-        Step(
-            id="reassess",
-            phase="before induction",
-            title="Reassess the airway now",
-            summary="reassess Mallampati and oedema signs on the table",
-            actions=(
-                "Repeat Mallampati and look for new oedema signs (voice, stridor, "
-                "tongue) on the table before induction.",
-            ),
-        ),
+        _CRICOID_STEP,
+        _REASSESS_STEP,
         Step(
             id="intubate",
             phase="first attempt",
@@ -273,18 +299,7 @@ def _steps(
             ),
             basis=f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}",
         ),
-        Step(
-            id="after",
-            phase="after the event",
-            title="After the event",
-            summary="after: airway alert, record, debrief, letter",
-            actions=(
-                "Airway alert recorded in her notes.",
-                "Full record: grades, devices, attempts, what worked.",
-                "Team debrief; incident report per local policy.",
-                "Explain to her, and send a letter to her and her family doctor.",
-            ),
-        ),
+        _AFTER_STEP,
     ]
     return tuple(steps)
 
