@@ -146,6 +146,13 @@ def _evaluate(
     return fixed.absent._replace(present=True, contribution=contribution, detail=reading.detail)
 
 
+_SHOWN_THRESHOLDS: tuple[float, float, float] = (
+    round(LEVEL_THRESHOLDS[0], 4),
+    round(LEVEL_THRESHOLDS[1], 4),
+    round(LEVEL_THRESHOLDS[2], 4),
+)
+
+
 def score(assessment: Assessment, body: BodySize) -> Risk:
     """Evaluate every catalogued factor and combine them into a :class:`Risk`."""
     results = tuple(_evaluate(f, fixed, assessment, body) for f, fixed in _SCORED)
@@ -163,7 +170,7 @@ def score(assessment: Assessment, body: BodySize) -> Risk:
         factors=results,
         not_assessed=not_assessed,
         note=INDEPENDENCE_NOTE,
-        thresholds=tuple(round(t, 4) for t in LEVEL_THRESHOLDS),  # type: ignore[arg-type]
+        thresholds=_SHOWN_THRESHOLDS,
     )
 
 
