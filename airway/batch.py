@@ -29,7 +29,7 @@ from .loading import read_text_file
 from .output import write_atomic, write_group_atomic
 from .plan import assessment_digest, build_plan
 from .plan_model import saved_object
-from .render_json import render_json
+from .render_json import render_json_bytes
 
 SUMMARY_CSV = "summary.csv"
 SUMMARY_PDF = "summary.pdf"
@@ -116,7 +116,7 @@ def _plan_rows(job: _Job, start: int, stop: int) -> list[Done]:
         if job.resume and _still_matches(job.out, row, job.pdf):
             done.append((row.number, line, 0, True))
             continue
-        files.append((job.out / f"{row.id}.json", render_json(plan).encode("utf-8")))
+        files.append((job.out / f"{row.id}.json", render_json_bytes(plan)))
         if job.pdf:
             from .render_pdf import render_plan_pdf
 

@@ -24,6 +24,7 @@ from .guidance import (
     MAX_SGA_ATTEMPTS,
     SGA_ATTEMPTS_EVIDENCE,
 )
+from .lasting import lasting
 from .oxygenation import FEO2_DEFAULT, Oxygenation, oxygenation_for
 from .plan_model import GeneratedBy, Plan, Step
 from .scoring import Risk, score
@@ -86,71 +87,82 @@ def _minutes_text(minutes: float | None, horizon: float) -> str:
     return f"more than {horizon:g} min" if minutes is None else f"about {minutes:g} min"
 
 
-# Steps that hold none of her values: made once.
-_POSITION_STEP = Step(
-    id="position",
-    phase="before induction",
-    title="Position",
-    summary="ramp (ear canal level with sternal notch), left tilt about 15°",
-    actions=(
-        "Ramp head-up until the ear canal is level with the sternal notch.",
-        "Left uterine displacement of about 15 degrees (tilt or wedge).",
-    ),
-    basis=POSITION_EVIDENCE.describe(),
+# Steps that hold none of her values: made once (and marked, see airway.lasting).
+_POSITION_STEP = lasting(
+    Step(
+        id="position",
+        phase="before induction",
+        title="Position",
+        summary="ramp (ear canal level with sternal notch), left tilt about 15°",
+        actions=(
+            "Ramp head-up until the ear canal is level with the sternal notch.",
+            "Left uterine displacement of about 15 degrees (tilt or wedge).",
+        ),
+        basis=POSITION_EVIDENCE.describe(),
+    )
 )
 
 
-_ANTACID_STEP = Step(
-    id="antacid",
-    phase="before induction",
-    title="Antacid prophylaxis",
-    summary="antacid: H2 antagonist or PPI, sodium citrate 30 mL",
-    actions=(
-        "H2-receptor antagonist or proton-pump inhibitor given; sodium citrate "
-        "0.3 M 30 mL just before induction.",
-    ),
-    basis=ANTACID_EVIDENCE.describe(),
+_ANTACID_STEP = lasting(
+    Step(
+        id="antacid",
+        phase="before induction",
+        title="Antacid prophylaxis",
+        summary="antacid: H2 antagonist or PPI, sodium citrate 30 mL",
+        actions=(
+            "H2-receptor antagonist or proton-pump inhibitor given; sodium citrate "
+            "0.3 M 30 mL just before induction.",
+        ),
+        basis=ANTACID_EVIDENCE.describe(),
+    )
 )
 
 
-_CRICOID_STEP = Step(
-    id="cricoid",
-    phase="before induction",
-    title="Cricoid force",
-    summary=f"cricoid {CRICOID_AWAKE_N} N awake -> {CRICOID_ASLEEP_N} N asleep; ease if difficult",
-    actions=(
-        f"{CRICOID_AWAKE_N} N while awake, rising to {CRICOID_ASLEEP_N} N once "
-        "consciousness is lost.",
-        "Reduce or release it if laryngoscopy, mask ventilation or supraglottic "
-        "insertion is difficult.",
-    ),
-    basis=CRICOID_EVIDENCE.describe(),
+_CRICOID_STEP = lasting(
+    Step(
+        id="cricoid",
+        phase="before induction",
+        title="Cricoid force",
+        summary=f"cricoid {CRICOID_AWAKE_N} N awake -> {CRICOID_ASLEEP_N} N asleep; "
+        "ease if difficult",
+        actions=(
+            f"{CRICOID_AWAKE_N} N while awake, rising to {CRICOID_ASLEEP_N} N once "
+            "consciousness is lost.",
+            "Reduce or release it if laryngoscopy, mask ventilation or supraglottic "
+            "insertion is difficult.",
+        ),
+        basis=CRICOID_EVIDENCE.describe(),
+    )
 )
 
 
-_REASSESS_STEP = Step(
-    id="reassess",
-    phase="before induction",
-    title="Reassess the airway now",
-    summary="reassess Mallampati and oedema signs on the table",
-    actions=(
-        "Repeat Mallampati and look for new oedema signs (voice, stridor, "
-        "tongue) on the table before induction.",
-    ),
+_REASSESS_STEP = lasting(
+    Step(
+        id="reassess",
+        phase="before induction",
+        title="Reassess the airway now",
+        summary="reassess Mallampati and oedema signs on the table",
+        actions=(
+            "Repeat Mallampati and look for new oedema signs (voice, stridor, "
+            "tongue) on the table before induction.",
+        ),
+    )
 )
 
 
-_AFTER_STEP = Step(
-    id="after",
-    phase="after the event",
-    title="After the event",
-    summary="after: airway alert, record, debrief, letter",
-    actions=(
-        "Airway alert recorded in her notes.",
-        "Full record: grades, devices, attempts, what worked.",
-        "Team debrief; incident report per local policy.",
-        "Explain to her, and send a letter to her and her family doctor.",
-    ),
+_AFTER_STEP = lasting(
+    Step(
+        id="after",
+        phase="after the event",
+        title="After the event",
+        summary="after: airway alert, record, debrief, letter",
+        actions=(
+            "Airway alert recorded in her notes.",
+            "Full record: grades, devices, attempts, what worked.",
+            "Team debrief; incident report per local policy.",
+            "Explain to her, and send a letter to her and her family doctor.",
+        ),
+    )
 )
 
 

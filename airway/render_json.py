@@ -23,6 +23,7 @@ from typing import Any
 
 from pydantic_core import to_json
 
+from .lasting import LASTING
 from .plan_model import Plan, plain
 
 # Python and pydantic-core write floats alike from 1e-4 up to (not including) 1e16;
@@ -75,11 +76,15 @@ def _sorted(value: Any) -> Any:
 
 
 def _checked(value: Any) -> Any:
-    """A number field's value, refused when it is a float the encoders write apart."""
-    if type(value) is float and _odd(value):
+    """A number field's value, refused when it is a float the encoders write apart
+    (:func:`_odd`, written out: a plan has about 150 number fields)."""
+    if type(value) is float and value != 0.0 and not _FLOAT_SMALLEST <= abs(value) < _FLOAT_LARGEST:
         raise _OddFloat
     return value
 
+
+# JSON-ready forms of records made once per process (airway.lasting), by id.
+_MEMO: dict[int, dict[str, Any]] = {}
 
 # For each kind of record, a function written for it (see _converter).
 _CONVERTERS: dict[type, Callable[[Any], Any]] = {}
@@ -146,7 +151,19 @@ def _converter(kind: Any) -> Callable[[Any], Any]:
         ]
     finally:
         _BUILDING.discard(kind)
-    exec(f"def convert(v):\n    return {{{', '.join(items)}}}\n", env)
+    # A record made once per process (airway.lasting) is converted once: the memo
+    # holds its JSON-ready form, keyed by the id that names it for the process.
+    env["_lasting"], env["_memo"] = LASTING, _MEMO
+    exec(
+        "def convert(v):\n"
+        "    out = _memo.get(id(v))\n"
+        "    if out is None:\n"
+        f"        out = {{{', '.join(items)}}}\n"
+        "        if id(v) in _lasting:\n"
+        "            _memo[id(v)] = out\n"
+        "    return out\n",
+        env,
+    )
     _CONVERTERS[kind] = env["convert"]
     return env["convert"]
 
@@ -156,17 +173,33 @@ def standard_json(data: Any) -> str:
     return json.dumps(data, sort_keys=True, indent=2, ensure_ascii=False) + "\n"
 
 
+def _fast(data: Any) -> bytes | None:
+    """The fast encoder's UTF-8 bytes, or None where the standard library must write."""
+    if type(data) is not dict and not hasattr(type(data), "_fields"):
+        return None
+    try:
+        return to_json(_sorted(data), indent=2) + b"\n"
+    except (_OddFloat, ValueError):  # or text that is not valid Unicode, a huge integer
+        return None
+
+
 def dumps(data: Any) -> str:
     """``standard_json(plain(data))``, byte for byte, but fast for plan-shaped data."""
-    if type(data) is not dict and not hasattr(type(data), "_fields"):
-        return standard_json(plain(data))
-    try:
-        fast = to_json(_sorted(data), indent=2)
-    except (_OddFloat, ValueError):  # or text that is not valid Unicode, a huge integer
-        return standard_json(plain(data))
-    return fast.decode("utf-8") + "\n"
+    fast = _fast(data)
+    return standard_json(plain(data)) if fast is None else fast.decode("utf-8")
+
+
+def dumps_bytes(data: Any) -> bytes:
+    """:func:`dumps` as UTF-8 bytes, with no round trip through a string (for files)."""
+    fast = _fast(data)
+    return standard_json(plain(data)).encode("utf-8") if fast is None else fast
 
 
 def render_json(plan: Plan) -> str:
     """Sorted keys, two-space indent, trailing newline: same plan, same bytes."""
     return dumps(plan)
+
+
+def render_json_bytes(plan: Plan) -> bytes:
+    """:func:`render_json` as the UTF-8 bytes of a file."""
+    return dumps_bytes(plan)

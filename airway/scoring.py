@@ -15,6 +15,7 @@ from typing import NamedTuple
 from .assessment import Assessment
 from .body import BodySize
 from .factors import CATALOGUE, Factor
+from .lasting import lasting
 from .sources import SOURCES, Evidence
 
 # Level boundaries on the index (project rule): a combined ratio of 3, 10 and
@@ -123,8 +124,8 @@ def _fixed(factor: Factor) -> _Fixed:
         log_weight=factor.log_weight,
         source_short=SOURCES[factor.evidence.source].short,
         evidence=factor.evidence.describe(),
-        absent=_result(factor, False, 0.0, ""),
-        unassessed=_result(factor, None, 0.0, ""),
+        absent=lasting(_result(factor, False, 0.0, "")),
+        unassessed=lasting(_result(factor, None, 0.0, "")),
     )
 
 

@@ -30,6 +30,18 @@ def test_examples_write_the_standard_bytes() -> None:
         assert render_json(plan) == standard_json(plain(plan))
 
 
+def test_file_bytes_are_the_text_in_utf8() -> None:
+    """A clinic list writes plans as bytes straight from the encoder: the same bytes
+    as the text of `plan -f json`, encoded."""
+    from airway.render_json import dumps_bytes, render_json_bytes
+
+    for path in EXAMPLES:
+        plan = build_plan(read_assessment(path))
+        assert render_json_bytes(plan) == render_json(plan).encode("utf-8")
+    odd = {"tiny": 2.5e-05, "name": "Zoë"}  # written by the standard library
+    assert dumps_bytes(odd) == standard_json(odd).encode("utf-8")
+
+
 def test_every_clinic_list_plan_writes_the_standard_bytes() -> None:
     rows = read_clinic_list((ROOT / "examples" / "clinic-list.csv").read_text("utf-8"), "x")
     plans = [build_plan(r.assessment) for r in rows if r.assessment is not None]
