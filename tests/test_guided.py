@@ -5,8 +5,8 @@ from __future__ import annotations
 import contextlib
 import json
 import os
-import pty
 import select
+import subprocess
 import sys
 import time
 import tomllib
@@ -138,12 +138,37 @@ def _read_until(fd: int, marker: bytes, seconds: float = 20) -> bytes:
     return seen
 
 
+def _in_a_terminal(args: list[str]) -> tuple[subprocess.Popen[bytes], int, int]:
+    """Start ``args`` on a new pseudo-terminal as its controlling terminal, so that
+    Ctrl-C typed into it interrupts the program as at a real keyboard.
+
+    Returns the process and both ends of the terminal. The caller keeps the
+    program's end open until the program has ended: closing it early can lose the
+    program's last words, which the test reads (seen once on a loaded machine).
+    """
+    import fcntl
+    import termios
+
+    master, slave = os.openpty()
+
+    def take_terminal() -> None:  # in the child, after the new session is made
+        fcntl.ioctl(0, termios.TIOCSCTTY, 0)
+
+    proc = subprocess.Popen(
+        args,
+        stdin=slave,
+        stdout=slave,
+        stderr=slave,
+        start_new_session=True,
+        preexec_fn=take_terminal,  # the test process runs no threads
+    )
+    return proc, master, slave
+
+
 def test_through_a_terminal_ctrl_c_saves_nothing(tmp_path: Path) -> None:
     """Driven through a pseudo-terminal, as a clinician types: answers, then Ctrl-C."""
     out = tmp_path / "a.toml"
-    pid, fd = pty.fork()  # the child gets the terminal as its controlling terminal
-    if pid == 0:  # pragma: no cover - the child process
-        os.execv(sys.executable, [sys.executable, "-m", "airway", "assess", "-o", str(out)])
+    proc, fd, slave = _in_a_terminal([sys.executable, "-m", "airway", "assess", "-o", str(out)])
     try:
         assert b"Date of this assessment" in _read_until(fd, b"Date of this assessment")
         os.write(fd, b"2026-12-01\n")
@@ -151,14 +176,15 @@ def test_through_a_terminal_ctrl_c_saves_nothing(tmp_path: Path) -> None:
         os.write(fd, b"98\n")
         assert b"Height" in _read_until(fd, b"Height")
         os.write(fd, b"\x03")  # Ctrl-C: the terminal sends SIGINT
+        assert proc.wait(timeout=20) == 1
         text = _read_until(fd, b"nothing saved")
         assert b"nothing saved" in text and b"Traceback" not in text
-        _pid, status = os.waitpid(pid, 0)
-        assert os.waitstatus_to_exitcode(status) == 1
     finally:
         with contextlib.suppress(ProcessLookupError):
-            os.kill(pid, 9)
+            proc.kill()
+        proc.wait()
         os.close(fd)
+        os.close(slave)
     assert not out.exists()
 
 
