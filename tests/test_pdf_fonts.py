@@ -7,6 +7,7 @@ same in either font.
 
 from __future__ import annotations
 
+import dataclasses
 import io
 from pathlib import Path
 
@@ -60,6 +61,13 @@ def test_texts_in_walks_every_container() -> None:
     texts = set(texts_in(plan))
     assert {"label-x", "name-y"} <= texts
     assert set(texts_in({"k": [("a", 1.5), {"b"}]})) == {"k", "a", "b"}
+
+    @dataclasses.dataclass
+    class Row:  # as the ward board's rows
+        name: str
+        warnings: tuple[str, ...]
+
+    assert set(texts_in([Row(CYRILLIC, ("w",))])) == {CYRILLIC, "w"}
 
 
 @needs_system_font
@@ -126,3 +134,24 @@ def test_text_outside_the_cut_without_the_system_font(
         render_plan_pdf(build_plan(make(identity={"name": CYRILLIC})))
     message = str(info.value)
     assert "fonts-dejavu-core" in message and all(ch in message for ch in CYRILLIC)
+
+
+@needs_system_font
+def test_ward_board_with_a_name_outside_the_cut(tmp_path: Path) -> None:
+    """The board names each woman by her plan file's name (a clinic id, or whatever a
+    ward saved it as): one outside the cut sets the board in the whole DejaVu Sans,
+    and the name prints as written."""
+    from datetime import date
+
+    from airway.board import board_rows, load_plans
+    from airway.render_board import render_board_pdf
+    from airway.render_json import render_json
+
+    for n, name in enumerate(["Zoë", CYRILLIC]):
+        plan = build_plan(make(assessed_on="2026-12-01", label=f"woman {n}"))
+        (tmp_path / f"{name}.json").write_text(render_json(plan), "utf-8")
+    plans, _skipped = load_plans(tmp_path)
+    rows = board_rows(plans, date(2026, 12, 2), max_age_days=14)
+    pdf = render_board_pdf(rows, "2026-12-02", 14, [])
+    assert _fonts(pdf) <= {"DejaVuSans", "DejaVuSans-Bold"}
+    assert CYRILLIC in _text(pdf) and "Zoë" in _text(pdf)
