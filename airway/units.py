@@ -24,21 +24,22 @@ from .loading import problems_from_validation, read_toml_file
 DEFAULT_CONFIG = Path("airway.toml")
 
 
+# Built when a unit's file is read (defer_build): most runs have none.
 class UnitPaths(BaseModel):
-    model_config = ConfigDict(frozen=True, extra="forbid")
+    model_config = ConfigDict(frozen=True, extra="forbid", defer_build=True)
     checklists: Path | None = None
     catalogue: Path | None = None
     contacts: Path | None = None
 
 
 class Contact(BaseModel):
-    model_config = ConfigDict(frozen=True, extra="forbid")
+    model_config = ConfigDict(frozen=True, extra="forbid", defer_build=True)
     role: str = Field(min_length=1, max_length=80)
     number: str = Field(default="", max_length=40)
 
 
 class Contacts(BaseModel):
-    model_config = ConfigDict(frozen=True, extra="forbid")
+    model_config = ConfigDict(frozen=True, extra="forbid", defer_build=True)
     contact: tuple[Contact, ...] = Field(min_length=1)
 
 
@@ -51,7 +52,7 @@ def load_unit_paths(config: Path | None) -> UnitPaths:
     """The unit's paths from its config file; nothing when there is none."""
     if config is None:
         if not DEFAULT_CONFIG.is_file():
-            return UnitPaths()
+            return UnitPaths.model_construct()  # no unit files: the defaults, unchecked
         config = DEFAULT_CONFIG
     data = _read_toml(config, "config file")
     try:

@@ -198,3 +198,27 @@ def test_unit_checklist_not_utf8_exit_2(runner, tmp_path) -> None:
     (tmp_path / "10-team-brief.md").write_bytes(b"\xff\xfe not utf-8")
     r = runner.invoke(app, ["plan", "--demo", "--checklists", str(tmp_path)])
     assert r.exit_code == 2 and "not UTF-8" in r.stderr and "Traceback" not in r.output
+
+
+def test_shipped_checklists_built_unchecked_equal_the_parsed_ones() -> None:
+    """The shipped checklists are built from the parse cache without validation: each
+    must be what parsing its file gives, value and type."""
+    from airway import checklists
+
+    checklists._parsed.cache_clear()
+    cache = checklists._shipped_cache()
+    shipped = checklists.load_checklists()
+    assert len(shipped) == len(cache) >= 4
+    for name, text in checklists._shipped_texts():
+        label, body = text
+        fast = checklists._cached_checklist(cache[label]["checklist"])
+        slow = checklists.parse_checklist(body, label)
+        assert fast == slow and repr(fast) == repr(slow), name
+        assert fast.model_dump_json() == slow.model_dump_json()
+        assert checklists.Checklist.model_validate(cache[label]["checklist"]) == fast
+
+
+def test_no_unit_config_gives_the_default_paths() -> None:
+    from airway.units import UnitPaths
+
+    assert UnitPaths.model_construct() == UnitPaths()

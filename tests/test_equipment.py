@@ -133,3 +133,17 @@ def test_emergency_path_does_not_import_the_toml_parser() -> None:
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=False)
     assert "TOML False" in out.stderr
+
+
+def test_shipped_catalogue_built_unchecked_equals_the_checked_one() -> None:
+    """On the emergency path the shipped catalogue is built from its parsed copy without
+    validation (start-up): it must be what validation makes of it, value and type."""
+    from airway import equipment
+
+    data, checked = equipment._shipped_data()
+    assert checked  # the parsed copy is current (test above)
+    fast = equipment.load_catalogue()
+    slow = equipment.Catalogue.model_validate(data)
+    assert fast == slow
+    assert fast.model_dump_json() == slow.model_dump_json()
+    assert repr(fast) == repr(slow)  # 5.0, not 5: the types too
