@@ -1,6 +1,6 @@
 /*
  * The apnoea model's time loop, compiled: the same arithmetic as
- * airway.oxygenation.simulate_python, operation for operation, so that every
+ * airway.oxygenation.loop_python, operation for operation, so that every
  * figure is the same to the last bit (tests/test_oxygenation.py compares the two
  * over thousands of random women). Optional: when it is not built, airway runs
  * the Python loop and gives the same plans, only slower.

@@ -7,7 +7,8 @@ the oxygen consumption rate; arterial saturation mixes end-capillary blood
 (Severinghaus's dissociation curve, P50 shifted in pregnancy) with shunted
 venous blood. During apnoea gas is drawn into the shrinking lung from the
 pharynx: room air without apnoeic oxygenation, oxygen-rich gas with nasal
-oxygen. Pure Python, fixed-step integration.
+oxygen. Fixed-step integration; the time loop in Python, and the same loop in C
+(``_apnoea.c``, optional, same figures to the last bit) where it was built.
 
 Every constant sits beside its source or is marked as common practice, from
 memory, or a project calibration. The result is a model estimate with wide
