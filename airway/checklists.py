@@ -399,19 +399,12 @@ def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
     return tuple(_parsed(text, name) for _key, (name, text) in sorted(found.items()))
 
 
-def _fill(text: str, plan: Plan | None, front_of_neck_tube_mm: float) -> str:
-    """Put values in place; plan values need a plan, unit values never do."""
+def _fill_unit_values(text: str, front_of_neck_tube_mm: float) -> str:
+    """Put the unit's values in place (a trolley sheet: generic() refuses plan values
+    first; a plan's items are filled by for_plan)."""
     if "{{" not in text:  # most items hold no value
         return text
-
-    def value(match: re.Match[str]) -> str:
-        name = match["name"]
-        if name in UNIT_VALUES:
-            return UNIT_VALUES[name][1](front_of_neck_tube_mm)
-        assert plan is not None  # generic() refuses plan values first
-        return VALUES[name][1](plan)
-
-    return _VALUE.sub(value, text)
+    return _VALUE.sub(lambda m: UNIT_VALUES[m["name"]][1](front_of_neck_tube_mm), text)
 
 
 PlanValue = Callable[[Plan], str]
@@ -497,7 +490,7 @@ def generic(checklist: Checklist, front_of_neck_tube_mm: float) -> RenderedCheck
                 title=s.title,
                 items=tuple(
                     RenderedItem(
-                        text=_fill(i.text, None, front_of_neck_tube_mm), checkbox=i.checkbox
+                        text=_fill_unit_values(i.text, front_of_neck_tube_mm), checkbox=i.checkbox
                     )
                     for i in s.items
                 ),

@@ -68,8 +68,7 @@ def outside_cut(texts: Iterable[str]) -> set[str]:
     """The characters of these texts that the bundled cut does not hold."""
     found: set[str] = set()
     for text in texts:
-        if _OUTSIDE.search(text):
-            found.update(_OUTSIDE.findall(text))
+        found.update(_OUTSIDE.findall(text))
     return found
 
 

@@ -76,9 +76,8 @@ def _sorted(value: Any) -> Any:
 
 
 def _checked(value: Any) -> Any:
-    """A number field's value, refused when it is a float the encoders write apart
-    (:func:`_odd`, written out: a plan has about 150 number fields)."""
-    if type(value) is float and value != 0.0 and not _FLOAT_SMALLEST <= abs(value) < _FLOAT_LARGEST:
+    """A number field's value, refused when it is a float the encoders write apart."""
+    if type(value) is float and _odd(value):
         raise _OddFloat
     return value
 

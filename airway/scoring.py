@@ -95,8 +95,6 @@ class _Fixed(NamedTuple):
     """What a factor's result says whatever the assessment, worked out once."""
 
     log_weight: float  # what one unit of a present finding adds to the index
-    source_short: str
-    evidence: str
     absent: FactorResult  # the whole result when the finding is absent
     unassessed: FactorResult  # ... and when it was not assessed
 
@@ -122,8 +120,6 @@ def _result(factor: Factor, present: bool | None, contribution: float, detail: s
 def _fixed(factor: Factor) -> _Fixed:
     return _Fixed(
         log_weight=factor.log_weight,
-        source_short=SOURCES[factor.evidence.source].short,
-        evidence=factor.evidence.describe(),
         absent=lasting(_result(factor, False, 0.0, "")),
         unassessed=lasting(_result(factor, None, 0.0, "")),
     )
