@@ -13,6 +13,52 @@
 #include <Python.h>
 #include <math.h>
 
+/* round(100 * sao2, 1) exactly as Python computes it: the double nearest to the
+ * one-decimal number nearest to y = 100 * sao2 (ties to even, on y's exact binary
+ * value). Fast path: z = 10 * y is within half a unit in its last place (under
+ * 1e-9 below 1e6) of the exact product, so where z's fraction is further than 1e-6
+ * from one half the rounding direction is certain, and whole / 10.0, one correctly
+ * rounded division, is the double nearest that decimal. Near a tie, and for
+ * anything out of range, Python's own conversion decides (the same correctly
+ * rounded digits that round() uses). Returns -1 with an exception set on failure. */
+static int percent_tenths(double sao2, double *out) {
+    double y = 100.0 * sao2;
+    if (y >= 0.0 && y < 1e6) {
+        double z = y * 10.0;
+        double whole = floor(z);
+        double frac = z - whole; /* exact: whole is z's integer part */
+        if (fabs(frac - 0.5) > 1e-6) {
+            *out = (frac < 0.5 ? whole : whole + 1.0) / 10.0;
+            return 0;
+        }
+    }
+    char *text = PyOS_double_to_string(y, 'f', 1, 0, NULL);
+    if (text == NULL) {
+        return -1;
+    }
+    double value = PyOS_string_to_double(text, NULL, NULL);
+    PyMem_Free(text);
+    if (value == -1.0 && PyErr_Occurred()) {
+        return -1;
+    }
+    *out = value;
+    return 0;
+}
+
+/* round_percent(sao2) -> round(100 * sao2, 1); for the tests. */
+static PyObject *round_percent(PyObject *self, PyObject *arg) {
+    (void)self;
+    double sao2 = PyFloat_AsDouble(arg);
+    if (sao2 == -1.0 && PyErr_Occurred()) {
+        return NULL;
+    }
+    double out;
+    if (percent_tenths(sao2, &out) < 0) {
+        return NULL;
+    }
+    return PyFloat_FromDouble(out);
+}
+
 static PyObject *time_or_none(int reached, double t) {
     if (!reached) {
         Py_RETURN_NONE;
@@ -21,7 +67,7 @@ static PyObject *time_or_none(int reached, double t) {
 }
 
 /* run(state, constants, horizon_s, curve, curve_every) ->
- *     (t95, t90, t80, [(seconds, sao2), ...])
+ *     (t95, t90, t80, ((seconds, SaO2 % to one decimal), ...))
  * state: v_o2, v_n2, pool, hb_cap, flow, kept, shunt, bv, p50, o2_in, n2_in,
  *        paco2_start, dry, use_long, use_short
  * constants: severinghaus_p50, solubility, paco2_rise, step_s, step_long_s,
@@ -58,13 +104,18 @@ static PyObject *run(PyObject *self, PyObject *args) {
             pao2 = 0.0;
         }
         double sp = pao2 * sev_p50 / p50;
-        double sc = sp > 0 ? 1.0 / (23400.0 / (pow(sp, 3.0) + 150.0 * sp) + 1.0) : 0.0;
+        double sc = sp > 0 ? 1.0 / (23400.0 / (sp * sp * sp + 150.0 * sp) + 1.0) : 0.0;
         double cc = hb_cap * sc + solubility * pao2;
         double cv = pool / bv;
         double venous = cv / hb_cap;
         double sao2 = kept * sc + shunt * (venous < 1.0 ? venous : 1.0);
         if (t >= next_point) {
-            PyObject *point = Py_BuildValue("(ld)", (long)t, sao2);
+            double percent;
+            if (percent_tenths(sao2, &percent) < 0) {
+                Py_DECREF(points);
+                return NULL;
+            }
+            PyObject *point = Py_BuildValue("(ld)", (long)t, percent);
             if (point == NULL || PyList_Append(points, point) < 0) {
                 Py_XDECREF(point);
                 Py_DECREF(points);
@@ -111,6 +162,11 @@ static PyObject *run(PyObject *self, PyObject *args) {
         }
         t += dt;
     }
+    PyObject *curve_points = PyList_AsTuple(points);
+    Py_DECREF(points);
+    if (curve_points == NULL) {
+        return NULL;
+    }
     PyObject *a = time_or_none(has95, t95);
     PyObject *b = time_or_none(has90, t90);
     PyObject *c = time_or_none(has80, t80);
@@ -118,14 +174,15 @@ static PyObject *run(PyObject *self, PyObject *args) {
         Py_XDECREF(a);
         Py_XDECREF(b);
         Py_XDECREF(c);
-        Py_DECREF(points);
+        Py_DECREF(curve_points);
         return NULL;
     }
-    return Py_BuildValue("(NNNN)", a, b, c, points);
+    return Py_BuildValue("(NNNN)", a, b, c, curve_points);
 }
 
 static PyMethodDef methods[] = {
     {"run", run, METH_VARARGS, "The apnoea model's time loop (see airway.oxygenation)."},
+    {"round_percent", round_percent, METH_O, "round(100 * sao2, 1), as the loop rounds."},
     {NULL, NULL, 0, NULL},
 };
 

@@ -162,7 +162,7 @@ def minutes_label(minutes: float | None, horizon: float) -> str:
 def saturation(po2_mmhg: float, p50_mmhg: float = SEVERINGHAUS_P50_MMHG) -> float:
     """Severinghaus 1979 saturation (0-1); P50 shifted by scaling the PO2."""
     p = max(po2_mmhg, 0.0) * SEVERINGHAUS_P50_MMHG / p50_mmhg
-    return 1.0 / (23400.0 / (p**3 + 150.0 * p) + 1.0) if p > 0 else 0.0
+    return 1.0 / (23400.0 / (p * p * p + 150.0 * p) + 1.0) if p > 0 else 0.0
 
 
 def predicted_frc_upright_ml(height_cm: float, age_years: float) -> float:
@@ -261,8 +261,7 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
 
 def _course(state: LoopState, horizon_min: float = HORIZON_MIN, curve: bool = True) -> Course:
     run = _compiled_loop if _compiled_loop is not None else loop_python
-    t95, t90, t80, raw = run(state, _LOOP_CONSTANTS, horizon_min * 60.0, curve, CURVE_EVERY_S)
-    points = tuple((seconds, round(100 * sao2, 1)) for seconds, sao2 in raw)
+    t95, t90, t80, points = run(state, _LOOP_CONSTANTS, horizon_min * 60.0, curve, CURVE_EVERY_S)
     return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=points)
 
 
@@ -337,7 +336,7 @@ def start_state(p: Physiology) -> LoopState:
     )
 
 
-RawCourse = tuple[float | None, float | None, float | None, list[tuple[int, float]]]
+RawCourse = tuple[float | None, float | None, float | None, tuple[tuple[int, float], ...]]
 
 
 def loop_python(
@@ -348,7 +347,7 @@ def loop_python(
     curve_every: float,
 ) -> RawCourse:
     """The time loop: seconds to SaO2 95%, 90% and 80% (None: not within the
-    horizon) and the curve's (seconds, SaO2 0-1) points.
+    horizon) and the curve's (seconds, SaO2 % to one decimal) points.
 
     Written out by hand (no function calls per step); every expression keeps the
     order of operations of :func:`saturation` and the model's equations, so the
@@ -370,13 +369,13 @@ def loop_python(
         if not pao2 > 0.0:
             pao2 = 0.0
         sp = pao2 * severinghaus_p50 / p50
-        sc = 1.0 / (23400.0 / (sp**3 + 150.0 * sp) + 1.0) if sp > 0 else 0.0
+        sc = 1.0 / (23400.0 / (sp * sp * sp + 150.0 * sp) + 1.0) if sp > 0 else 0.0
         cc = hb_cap * sc + solubility * pao2
         cv = pool / bv
         venous = cv / hb_cap
         sao2 = kept * sc + shunt * (venous if venous < 1.0 else 1.0)
         if t >= next_point:
-            points.append((int(t), sao2))
+            points.append((int(t), round(100 * sao2, 1)))
             next_point += curve_every
         if sao2 < 0.95:
             if t95 is None:
@@ -403,7 +402,7 @@ def loop_python(
         if not pool > 0.0:
             pool = 0.0
         t += dt
-    return t95, t90, t80, points
+    return t95, t90, t80, tuple(points)
 
 
 def _load_compiled() -> Callable[..., RawCourse] | None:
@@ -457,6 +456,25 @@ def _minutes(seconds: float | None) -> float | None:
     return None if seconds is None else round(seconds / 60.0, 1)
 
 
+_HB_ASSUMED = f"haemoglobin not given: {HB_PREGNANT_G_PER_L:g} g/L assumed"
+_POOR_LABEL = f"poor pre-oxygenation (end-tidal O2 {FEO2_POOR:g})"
+_NASAL = (
+    ("nasal_low_flow", "plus low-flow nasal O2 through apnoea", FO2_NASAL_LOW_FLOW),
+    ("nasal_high_flow", "plus high-flow nasal O2 through apnoea", FO2_NASAL_HIGH_FLOW),
+)
+
+
+def _scenario(cid: str, label: str, feo2: float, fo2: float, course: Course) -> Scenario:
+    return Scenario(
+        id=cid,
+        label=label,
+        end_tidal_o2=feo2,
+        apnoeic_o2_fraction=fo2,
+        minutes_to_spo2_90=_minutes(course.seconds_to_90),
+        minutes_to_spo2_80=_minutes(course.seconds_to_80),
+    )
+
+
 def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxygenation:
     """All scenarios for one assessment."""
     pt = assessment.patient
@@ -468,7 +486,7 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
     if pt.age_years is None:
         assumptions.append("age not given: 30 years assumed")
     if pt.haemoglobin_g_per_l is None:
-        assumptions.append(f"haemoglobin not given: {HB_PREGNANT_G_PER_L:g} g/L assumed")
+        assumptions.append(_HB_ASSUMED)
     if pt.in_labour is None:
         assumptions.append("labour status not given: not in labour assumed")
     assumptions.append("supine, airway open to room air during apnoea unless nasal O2 is on")
@@ -476,55 +494,32 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         "pre-eclampsia is not modelled (a published simulation found it "
         "slowed desaturation; the estimate is not lengthened for it)"
     )
-    args = (
-        pt.weight_kg,
+    weight = pt.weight_kg
+    base = physiology(
+        weight,
         height,
         float(pt.age_years or 30),
         True,
         bool(pt.in_labour),
         pt.haemoglobin_g_per_l,
+        feo2,
     )
-    base = physiology(*args, feo2)
-    cases = (
-        ("as_assessed", f"pre-oxygenated to end-tidal O2 {feo2:g}", base),
-        (
-            "poor_preoxygenation",
-            f"poor pre-oxygenation (end-tidal O2 {FEO2_POOR:g})",
-            base._replace(feo2=FEO2_POOR),
-        ),
-        (
-            "nasal_low_flow",
-            "plus low-flow nasal O2 through apnoea",
-            with_nasal_o2(base, FO2_NASAL_LOW_FLOW, pt.weight_kg, height),
-        ),
-        (
-            "nasal_high_flow",
-            "plus high-flow nasal O2 through apnoea",
-            with_nasal_o2(base, FO2_NASAL_HIGH_FLOW, pt.weight_kg, height),
-        ),
-    )
-    scenarios = []
-    curve: tuple[tuple[int, float], ...] = ()
     start = start_state(base)
-    for cid, label, phys in cases:
-        if phys.feo2 == base.feo2:
-            # Nasal O2 changes only the gas drawn in during apnoea: the start is the same.
-            state = start._replace(o2_in=phys.pharyngeal_fo2 - 1.0, n2_in=1.0 - phys.pharyngeal_fo2)
-        else:
-            state = start_state(phys)
-        course = _course(state, curve=cid == "as_assessed")
-        if cid == "as_assessed":
-            curve = course.curve
-        scenarios.append(
-            Scenario(
-                id=cid,
-                label=label,
-                end_tidal_o2=phys.feo2,
-                apnoeic_o2_fraction=phys.pharyngeal_fo2,
-                minutes_to_spo2_90=_minutes(course.seconds_to_90),
-                minutes_to_spo2_80=_minutes(course.seconds_to_80),
-            )
-        )
+    assessed = _course(start)
+    fo2 = base.pharyngeal_fo2
+    poor = _course(start_state(base._replace(feo2=FEO2_POOR)), curve=False)
+    scenarios = [
+        _scenario("as_assessed", f"pre-oxygenated to end-tidal O2 {feo2:g}", feo2, fo2, assessed),
+        _scenario("poor_preoxygenation", _POOR_LABEL, FEO2_POOR, fo2, poor),
+    ]
+    above = _bmi_above_reference(weight, height)
+    for cid, label, nasal_fo2 in _NASAL:
+        # Nasal O2 changes only the gas drawn in during apnoea: the start is the same
+        # (as :func:`with_nasal_o2` gives it).
+        glottic = _glottic_fo2(nasal_fo2, above)
+        state = start._replace(o2_in=glottic - 1.0, n2_in=1.0 - glottic)
+        scenarios.append(_scenario(cid, label, feo2, glottic, _course(state, curve=False)))
+    curve = assessed.curve
     t90, t80 = scenarios[0].minutes_to_spo2_90, scenarios[0].minutes_to_spo2_80  # as assessed
     return Oxygenation(
         minutes_to_spo2_90=t90,

@@ -336,3 +336,30 @@ def test_scenarios_equal_each_worked_out_from_scratch(weight, height, labour) ->
             for s in (course.seconds_to_90, course.seconds_to_80)
         )
         assert got[cid] == want, cid
+
+
+def test_compiled_rounding_of_the_curve_is_pythons_round() -> None:
+    """The compiled loop rounds each curve point itself; it must agree with Python's
+    ``round(100 * sao2, 1)`` everywhere, most of all next to the ties it hands over to
+    Python's own conversion (k + 0.05 per cent, give or take a few units in the last
+    place), and on zero, negative, huge and non-finite values."""
+    import math
+    import random
+
+    from airway import oxygenation
+
+    if not oxygenation.compiled():
+        pytest.skip("airway._apnoea is not built here")
+    from airway import _apnoea
+
+    rng = random.Random(3)
+    values = [rng.random() for _ in range(50_000)]
+    for k in range(1000):
+        tie = (k + 0.5) / 1000
+        values += [tie + d * 2**-53 for d in range(-4, 5)]
+        values.append((k / 10 + 0.05) / 100)
+    values += [0.0, -0.0, 1.0, -1e-9, -0.5, 1e-300, 5e3, 2e4, math.inf, -math.inf]
+    for v in values:
+        got, want = _apnoea.round_percent(v), round(100 * v, 1)
+        assert got == want and math.copysign(1, got) == math.copysign(1, want), v
+    assert math.isnan(_apnoea.round_percent(math.nan))
