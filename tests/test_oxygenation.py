@@ -320,7 +320,9 @@ def test_scenarios_equal_each_worked_out_from_scratch(weight, height, labour) ->
     )
 
     a = make(patient={"weight_kg": weight, "height_cm": height, "in_labour": labour})
-    got = {s.id: (s.minutes_to_spo2_90, s.minutes_to_spo2_80) for s in oxygenation_for(a).scenarios}
+    scenarios = oxygenation_for(a).scenarios
+    got = {s.id: (s.minutes_to_spo2_90, s.minutes_to_spo2_80) for s in scenarios}
+    gases = {s.id: (s.end_tidal_o2, s.apnoeic_o2_fraction) for s in scenarios}
     kw = {"age_years": float(a.patient.age_years or 30), "in_labour": labour}
     cases = {
         "as_assessed": physiology(weight, height, **kw),
@@ -336,6 +338,7 @@ def test_scenarios_equal_each_worked_out_from_scratch(weight, height, labour) ->
             for s in (course.seconds_to_90, course.seconds_to_80)
         )
         assert got[cid] == want, cid
+        assert gases[cid] == (phys.feo2, phys.pharyngeal_fo2), cid
 
 
 def test_compiled_rounding_of_the_curve_is_pythons_round() -> None:
