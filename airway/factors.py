@@ -67,6 +67,17 @@ class Reading(NamedTuple):
 
 Reader = Callable[[Assessment, BodySize], Reading]
 
+# Readings without a detail, made once: most findings in a plan are absent or not
+# assessed, and a clinic list reads thousands of plans.
+NOT_ASSESSED = Reading(present=None)
+ABSENT = Reading(present=False)
+PRESENT = Reading(present=True)
+
+
+def _presence(value: bool | None) -> Reading:
+    """The shared reading for present, absent or not assessed (no detail)."""
+    return NOT_ASSESSED if value is None else PRESENT if value else ABSENT
+
 
 class Factor(NamedTuple):
     """One catalogued risk factor."""
@@ -87,97 +98,103 @@ class Factor(NamedTuple):
 
 
 def _flag(value: bool | None, detail: str = "") -> Reading:
-    return Reading(present=value, detail=detail if value else "")
+    if value and detail:
+        return Reading(present=True, detail=detail)
+    return _presence(value)
 
 
 def _below(value: float | None, limit: float, unit: str) -> Reading:
-    if value is None:
-        return Reading(present=None)
-    return Reading(present=value < limit, detail=f"{value:g} {unit} (< {limit:g} {unit})")
+    if value is None or not value < limit:
+        return _presence(None if value is None else False)
+    return Reading(present=True, detail=f"{value:g} {unit} (< {limit:g} {unit})")
 
 
 def _mallampati(cls: int) -> Reader:
     def read(a: Assessment, _b: BodySize) -> Reading:
         mp = a.airway.mallampati
-        if mp is None:
-            return Reading(present=None)
-        return Reading(present=mp == cls)  # the label already names the class
+        return _presence(None if mp is None else mp == cls)  # the label names the class
 
     return read
 
 
 def _bmi(_a: Assessment, b: BodySize) -> Reading:
     if b.bmi is None:
-        return Reading(present=None)
+        return NOT_ASSESSED
     above = max(0.0, b.bmi - BMI_REFERENCE)
-    return Reading(present=above > 0, units=above, detail=f"BMI {b.bmi:.1f}, {above:.1f} above 25")
+    if not above > 0:
+        return ABSENT
+    return Reading(present=True, units=above, detail=f"BMI {b.bmi:.1f}, {above:.1f} above 25")
 
 
 def _age(a: Assessment, _b: BodySize) -> Reading:
     age = a.patient.age_years
     if age is None:
-        return Reading(present=None)
+        return NOT_ASSESSED
     above = float(max(0, age - AGE_REFERENCE_YEARS))
-    return Reading(present=above > 0, units=above, detail=f"{age} years, {above:g} above 35")
+    if not above > 0:
+        return ABSENT
+    return Reading(present=True, units=above, detail=f"{age} years, {above:g} above 35")
 
 
 def _preeclampsia(status: str) -> Reader:
     def read(a: Assessment, _b: BodySize) -> Reading:
         got = a.preeclampsia.status
-        if got is None:
-            return Reading(present=None)
-        return Reading(present=got == status)
+        return _presence(None if got is None else got == status)
 
     return read
 
 
 def _oedema(a: Assessment, _b: BodySize) -> Reading:
     signs = [s for s in a.preeclampsia.signs if s in OEDEMA_SIGNS_NOT_STRIDOR]
-    return Reading(present=bool(signs), detail=", ".join(s.replace("_", " ") for s in signs))
+    if not signs:
+        return ABSENT
+    return Reading(present=True, detail=", ".join(s.replace("_", " ") for s in signs))
 
 
 def _stridor(a: Assessment, _b: BodySize) -> Reading:
-    return Reading(present="stridor" in a.preeclampsia.signs)
+    return _presence("stridor" in a.preeclampsia.signs)
 
 
 def _intubation(kind: str) -> Reader:
     def read(a: Assessment, _b: BodySize) -> Reading:
         got = a.history.intubation
-        return Reading(present=None if got is None else got == kind)
+        return _presence(None if got is None else got == kind)
 
     return read
 
 
 def _neck_movement(a: Assessment, _b: BodySize) -> Reading:
     got = a.airway.neck_movement
-    if got is None:
-        return Reading(present=None)
-    return Reading(present=got != "normal", detail=got)
+    if got is None or got == "normal":
+        return _presence(None if got is None else False)
+    return Reading(present=True, detail=got)
 
 
 def _jaw(a: Assessment, _b: BodySize) -> Reading:
     got = a.airway.jaw_protrusion
-    return Reading(present=None if got is None else got == "limited")
+    return _presence(None if got is None else got == "limited")
 
 
 def _ulbt(a: Assessment, _b: BodySize) -> Reading:
     got = a.airway.upper_lip_bite
-    return Reading(present=None if got is None else got == 3, detail=f"class {got}")
+    if got != 3:
+        return _presence(None if got is None else False)
+    return Reading(present=True, detail=f"class {got}")
 
 
 def _neck_circumference(a: Assessment, _b: BodySize) -> Reading:
     nc = a.airway.neck_circumference_cm
-    if nc is None:
-        return Reading(present=None)
     limit = NECK_CIRCUMFERENCE_LARGE_CM
-    return Reading(present=nc > limit, detail=f"{nc:g} cm (> {limit:g} cm)")
+    if nc is None or not nc > limit:
+        return _presence(None if nc is None else False)
+    return Reading(present=True, detail=f"{nc:g} cm (> {limit:g} cm)")
 
 
 def _platelets(a: Assessment, _b: BodySize) -> Reading:
     p = a.preeclampsia.platelets_10e9_per_l
-    if p is None:
-        return Reading(present=None)
-    return Reading(present=p < PLATELETS_LOW_10E9, detail=f"{p:g} x10^9/L")
+    if p is None or not p < PLATELETS_LOW_10E9:
+        return _presence(None if p is None else False)
+    return Reading(present=True, detail=f"{p:g} x10^9/L")
 
 
 def _labour(a: Assessment, _b: BodySize) -> Reading:

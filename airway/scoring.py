@@ -133,14 +133,17 @@ _SCORED: tuple[tuple[Factor, _Fixed], ...] = tuple((f, _fixed(f)) for f in CATAL
 def _evaluate(
     factor: Factor, fixed: _Fixed, assessment: Assessment, body: BodySize
 ) -> FactorResult:
-    reading = factor.read(assessment, body)
-    present = reading.present
+    present, units, detail = factor.read(assessment, body)
     if not present:
         return fixed.unassessed if present is None else fixed.absent
     contribution = 0.0
     if factor.role == "difficulty":
-        contribution = round(fixed.log_weight * reading.units, 4)
-    return fixed.absent._replace(present=True, contribution=contribution, detail=reading.detail)
+        contribution = round(fixed.log_weight * units, 4)
+    # The absent result with what this finding changes (present, contribution, detail).
+    a = fixed.absent
+    return FactorResult(
+        a[0], a[1], a[2], a[3], True, a[5], contribution, detail, a[8], a[9], a[10], a[11], a[12]
+    )
 
 
 _SHOWN_THRESHOLDS: tuple[float, float, float] = (
@@ -152,12 +155,12 @@ _SHOWN_THRESHOLDS: tuple[float, float, float] = (
 
 def score(assessment: Assessment, body: BodySize) -> Risk:
     """Evaluate every catalogued factor and combine them into a :class:`Risk`."""
-    results = tuple(_evaluate(f, fixed, assessment, body) for f, fixed in _SCORED)
-    index = round(sum(r.contribution for r in results), 4)
-    overrides = tuple(r.label for r in results if r.role == "override" and r.present)
+    results = tuple([_evaluate(f, fixed, assessment, body) for f, fixed in _SCORED])
+    index = round(sum([r.contribution for r in results]), 4)
+    overrides = tuple([r.label for r in results if r.role == "override" and r.present])
     index_level = level_for_index(index)
     level = 4 if overrides else index_level
-    not_assessed = tuple(dict.fromkeys(finding_name(r.id) for r in results if r.present is None))
+    not_assessed = tuple(dict.fromkeys([_FINDING_OF[r.id] for r in results if r.present is None]))
     return Risk(
         level=level,
         label=LEVEL_LABELS[level],
@@ -197,3 +200,6 @@ _FINDING = {
 def finding_name(factor_id: str) -> str:
     """The finding a factor reads: the three Mallampati factors read one finding."""
     return _FINDING.get(factor_id, factor_id.replace("_", " "))
+
+
+_FINDING_OF = {f.id: finding_name(f.id) for f in CATALOGUE}
