@@ -233,13 +233,7 @@ def boundary_weight_kg(height_cm: float) -> float:
 
 
 def _alternative(low: float, high: float, scalar: Scalar, kg: float, source: str) -> Alternative:
-    return Alternative(
-        scalar=scalar,
-        weight_kg=round(kg, 2),
-        dose_mg_low=_mg(low, kg),
-        dose_mg_high=_mg(high, kg),
-        source=source,
-    )
+    return Alternative(scalar, round(kg, 2), _mg(low, kg), _mg(high, kg), source)
 
 
 @functools.cache  # the same few sentences for every woman: made once
@@ -254,6 +248,10 @@ def _basis(drug: Drug, held: bool) -> str:
     return "; ".join(e.describe() for e in evidence)
 
 
+# The shipped drugs' basis sentences, by identity (hashing a whole drug costs more).
+_SHIPPED_BASIS = {(id(d), held): _basis(d, held) for d in DRUGS for held in (False, True)}
+
+
 def compute_dose(drug: Drug, body: BodySize) -> Dose:
     """Dose range for one drug and one woman.
 
@@ -261,20 +259,21 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
     :data:`CONTINUITY_EVIDENCE`.
     """
     low, high = drug.mg_per_kg
-    obese = body.bmi is not None and body.bmi >= OBESE_BMI
+    bmi = body.bmi
+    obese = bmi is not None and bmi >= OBESE_BMI
     wanted: Scalar = drug.scalar_obese if obese else drug.scalar_normal
     kg = _weight(body, wanted)
     scaled = kg is not None
     note = drug.note
-    alternatives: list[Alternative] = []
+    alternatives: tuple[Alternative, ...] = ()
     rule, held_from = "", None
     if obese and kg is not None and body.height_cm is not None and wanted != "total":
         floor = boundary_weight_kg(body.height_cm)
         if kg < floor:
-            alternatives.append(_alternative(low, high, wanted, kg, drug.scalar_evidence.source))
+            alternatives = (_alternative(low, high, wanted, kg, drug.scalar_evidence.source),)
             rule, held_from = held_rule_text(floor), wanted
             wanted, kg = "boundary", floor
-    if body.bmi is None and drug.scalar_obese != "total":
+    if bmi is None and drug.scalar_obese != "total":
         scaled = False
         note = (
             f"Height missing: not scaled to {SCALAR_LABEL[drug.scalar_obese]}; shown on "
@@ -288,27 +287,29 @@ def compute_dose(drug: Drug, body: BodySize) -> Dose:
         for scalar, source in drug.alternatives_obese:
             alt_kg = _weight(body, scalar)
             if alt_kg is not None:
-                alternatives.append(_alternative(low, high, scalar, alt_kg, source))
-    basis = _basis(drug, held=held_from is not None)
+                alternatives += (_alternative(low, high, scalar, alt_kg, source),)
+    held = held_from is not None
+    basis = _SHIPPED_BASIS.get((id(drug), held)) or _basis(drug, held)
+    per_ml = drug.mg_per_ml
     return Dose(
-        drug=drug.name,
-        label=drug.label,
-        role=drug.role,
-        mg_per_kg_low=low,
-        mg_per_kg_high=high,
-        scalar=wanted,
-        scalar_weight_kg=kg,
-        dose_mg_low=_mg(low, kg),
-        dose_mg_high=_mg(high, kg),
-        mg_per_ml=drug.mg_per_ml,
-        volume_ml_low=round(low * kg / drug.mg_per_ml, 1),
-        volume_ml_high=round(high * kg / drug.mg_per_ml, 1),
-        scaled_as_intended=scaled,
-        alternatives=tuple(alternatives),
-        basis=basis,
-        note=note,
-        rule=rule,
-        held_from_scalar=held_from,
+        drug.name,
+        drug.label,
+        drug.role,
+        low,
+        high,
+        wanted,
+        kg,
+        round(low * kg, 1),  # _mg, written out
+        round(high * kg, 1),
+        per_ml,
+        round(low * kg / per_ml, 1),
+        round(high * kg / per_ml, 1),
+        scaled,
+        alternatives,
+        basis,
+        note,
+        rule,
+        held_from,
     )
 
 
