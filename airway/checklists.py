@@ -411,10 +411,10 @@ PlanValue = Callable[[Plan], str]
 
 
 class _Ready(NamedTuple):
-    """One item made ready to fill: its condition, and its text as pieces, each a
-    string or a function of the plan (a value)."""
+    """One item made ready to fill: its condition as a test of the plan, and its text
+    as pieces, each a string or a function of the plan (a value)."""
 
-    condition: Condition | None
+    holds: Callable[[Plan], object] | None  # None: always shown
     pieces: tuple[str | PlanValue, ...]
     checkbox: bool
     fixed: RenderedItem | None  # the whole item, when its text holds no value
@@ -427,6 +427,17 @@ def _value_of(name: str) -> PlanValue:
     return VALUES[name][1]
 
 
+def _test(condition: Condition | None) -> Callable[[Plan], object] | None:
+    """``condition.holds`` as one function, its name looked up once."""
+    if condition is None:
+        return None
+    if condition.min_level is not None:
+        least = condition.min_level
+        return lambda plan: plan.risk.level >= least
+    test = CONDITIONS[condition.name or ""][1]
+    return (lambda plan: not test(plan)) if condition.negate else test
+
+
 def _ready(item: Item) -> _Ready:
     # split() with one group gives text, name, text, name, ..., text.
     parts = _VALUE.split(item.text)
@@ -434,7 +445,7 @@ def _ready(item: Item) -> _Ready:
         _value_of(part) if n % 2 else part for n, part in enumerate(parts) if n % 2 or part
     )
     fixed = RenderedItem(text=item.text, checkbox=item.checkbox) if len(parts) == 1 else None
-    return _Ready(condition=item.condition, pieces=pieces, checkbox=item.checkbox, fixed=fixed)
+    return _Ready(holds=_test(item.condition), pieces=pieces, checkbox=item.checkbox, fixed=fixed)
 
 
 # Each checklist made ready once per process (a clinic list fills the same ones for
@@ -455,13 +466,14 @@ def for_plan(checklist: Checklist, plan: Plan) -> RenderedChecklist:
     sections = []
     for title, ready in _ready_sections(checklist):
         items = tuple(
-            r.fixed
-            or RenderedItem(
-                text="".join(p if isinstance(p, str) else p(plan) for p in r.pieces),
-                checkbox=r.checkbox,
-            )
-            for r in ready
-            if r.condition is None or r.condition.holds(plan)
+            [
+                r.fixed
+                or RenderedItem(
+                    "".join([p if isinstance(p, str) else p(plan) for p in r.pieces]), r.checkbox
+                )
+                for r in ready
+                if r.holds is None or r.holds(plan)
+            ]
         )
         if items:
             sections.append(RenderedSection(title=title, items=items))

@@ -166,6 +166,12 @@ _AFTER_STEP = lasting(
 )
 
 
+# The steps' sources, the same for every woman.
+_PREOX_BASIS = PREOX_EVIDENCE.describe()
+_SGA_BASIS = SGA_ATTEMPTS_EVIDENCE.describe()
+_CICO_BASIS = f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}"
+
+
 def _steps(
     a: Assessment,
     risk: Risk,
@@ -186,7 +192,7 @@ def _steps(
             f"Predicted time to SpO2 90% is short ({t90}): high-flow nasal oxygen set up, "
             "fewest attempts, front-of-neck kit open.",
         )
-    steps = [
+    steps = (
         Step(
             id="brief",
             phase="before induction",
@@ -214,7 +220,7 @@ def _steps(
                 f"Model estimate: SpO2 falls to 90% {t90} after apnoea begins (not a guarantee).",
                 *short_actions,
             ),
-            basis=PREOX_EVIDENCE.describe(),
+            basis=_PREOX_BASIS,
         ),
         _ANTACID_STEP,
         Step(
@@ -273,7 +279,7 @@ def _steps(
                 "Ease cricoid force during insertion.",
                 "If it fails: two-person face-mask ventilation with an oral airway.",
             ),
-            basis=SGA_ATTEMPTS_EVIDENCE.describe(),
+            basis=_SGA_BASIS,
         ),
         Step(
             id="wake_or_proceed",
@@ -309,11 +315,11 @@ def _steps(
                 "If her circulation fails: resuscitate and deliver by perimortem caesarean "
                 "section.",
             ),
-            basis=f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}",
+            basis=_CICO_BASIS,
         ),
         _AFTER_STEP,
-    ]
-    return tuple(steps)
+    )
+    return steps
 
 
 def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[str]:
