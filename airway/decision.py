@@ -214,9 +214,12 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
             "device favours going on; oedema, bleeding, trauma or poor ventilation favour waking.",
             "Oxygenation failing: can't intubate, can't oxygenate: front-of-neck access.",
         ),
-        basis=(
-            FACTOR_LIST_EVIDENCE.describe(),
-            GRADING_EVIDENCE.describe(),
-            POINTS_EVIDENCE.describe(),
-        ),
+        basis=_BASIS,
     )
+
+
+_BASIS = (
+    FACTOR_LIST_EVIDENCE.describe(),
+    GRADING_EVIDENCE.describe(),
+    POINTS_EVIDENCE.describe(),
+)

@@ -233,6 +233,10 @@ class Equipment(NamedTuple):
     items: tuple[Item, ...]
 
 
+_TUBE_BASIS = TUBE_EVIDENCE.describe()
+_SGA_BASIS = SGA_EVIDENCE.describe()
+
+
 def choose_tubes(assessment: Assessment, catalogue: Catalogue) -> TubeSizes:
     """First, backup and smallest tube from the stocked sizes."""
     pe = assessment.preeclampsia
@@ -252,7 +256,7 @@ def choose_tubes(assessment: Assessment, catalogue: Catalogue) -> TubeSizes:
         backup=backup,
         smallest=smallest,
         reason=reason,
-        evidence=TUBE_EVIDENCE.describe(),
+        evidence=_TUBE_BASIS,
     )
 
 
@@ -344,7 +348,7 @@ def choose_equipment(
         tracheal_tube_mm=tubes,
         supraglottic_size=sga,
         supraglottic_device=catalogue.supraglottic.device,
-        supraglottic_basis=SGA_EVIDENCE.describe(),
+        supraglottic_basis=_SGA_BASIS,
         front_of_neck_tube_mm=catalogue.front_of_neck_tube_mm,
         first_laryngoscope="videolaryngoscope"
         if video_first

@@ -344,6 +344,11 @@ def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[st
     return out
 
 
+_GENERATED_BY = lasting(
+    GeneratedBy(tool="airway", version=__version__, rules_version=RULES_VERSION)
+)
+
+
 def build_plan(
     assessment: Assessment,
     catalogue: Catalogue | None = None,
@@ -381,7 +386,7 @@ def build_plan(
         oxygenation.uncertainty,
     )
     plan = Plan(
-        generated_by=GeneratedBy(tool="airway", version=__version__, rules_version=RULES_VERSION),
+        generated_by=_GENERATED_BY,
         input_sha256=assessment_digest(assessment),
         assessment=assessment,
         risk=risk,
@@ -398,5 +403,5 @@ def build_plan(
     )
     if checklists is None:
         checklists = load_checklists()
-    filled = tuple(for_plan(c, plan) for c in checklists if "plan" in c.meta.use)
+    filled = tuple([for_plan(c, plan) for c in checklists if "plan" in c.meta.use])
     return plan._replace(checklists=filled)
