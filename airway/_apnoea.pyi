@@ -1,10 +1,10 @@
-"""Types of the compiled time loop (``_apnoea.c``); see ``oxygenation.loop_python``."""
+"""Types of the compiled time loop (``_apnoea.c``); see ``oxygenation.loops_python``."""
 
 def run(
-    state: tuple[float, ...],
+    states: tuple[tuple[float, ...], ...],
     constants: tuple[float, ...],
     horizon_s: float,
-    curve: bool,
+    curves: tuple[bool, ...],
     curve_every: float,
-) -> tuple[float | None, float | None, float | None, tuple[tuple[int, float], ...]]: ...
+) -> tuple[tuple[float | None, float | None, float | None, tuple[tuple[int, float], ...]], ...]: ...
 def round_percent(sao2: float) -> float: ...

@@ -256,13 +256,16 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     ``airway._apnoea`` is built (a clinic list runs it thousands of times), else in
     Python (:func:`loop_python`); the two give the same figures to the last bit.
     """
-    return _course(start_state(p), horizon_min, curve)
+    return _courses((start_state(p),), (curve,), horizon_min)[0]
 
 
-def _course(state: LoopState, horizon_min: float = HORIZON_MIN, curve: bool = True) -> Course:
-    run = _compiled_loop if _compiled_loop is not None else loop_python
-    t95, t90, t80, points = run(state, _LOOP_CONSTANTS, horizon_min * 60.0, curve, CURVE_EVERY_S)
-    return Course(seconds_to_95=t95, seconds_to_90=t90, seconds_to_80=t80, curve=points)
+def _courses(
+    states: tuple[LoopState, ...], curves: tuple[bool, ...], horizon_min: float = HORIZON_MIN
+) -> tuple[Course, ...]:
+    """Several scenarios in one run of the loop (at most :data:`MAX_SCENARIOS_A_RUN`)."""
+    run = _compiled_loop if _compiled_loop is not None else loops_python
+    raw = run(states, _LOOP_CONSTANTS, horizon_min * 60.0, curves, CURVE_EVERY_S)
+    return tuple([Course._make(r) for r in raw])
 
 
 class LoopState(NamedTuple):
@@ -337,6 +340,22 @@ def start_state(p: Physiology) -> LoopState:
 
 
 RawCourse = tuple[float | None, float | None, float | None, tuple[tuple[int, float], ...]]
+MAX_SCENARIOS_A_RUN = 8  # as many as the compiled loop takes in one call
+
+
+def loops_python(
+    states: tuple[LoopState, ...],
+    constants: tuple[float, ...],
+    horizon_s: float,
+    curves: tuple[bool, ...],
+    curve_every: float,
+) -> tuple[RawCourse, ...]:
+    """:func:`loop_python` for each state, its curve recorded or not: what the compiled
+    loop does in one call, stepping the scenarios in turn."""
+    if len(states) > MAX_SCENARIOS_A_RUN or len(curves) != len(states):
+        raise TypeError("run: up to 8 states, and one curve flag a state")
+    pairs = zip(states, curves, strict=True)
+    return tuple([loop_python(s, constants, horizon_s, c, curve_every) for s, c in pairs])
 
 
 def loop_python(
@@ -352,7 +371,7 @@ def loop_python(
     Written out by hand (no function calls per step); every expression keeps the
     order of operations of :func:`saturation` and the model's equations, so the
     figures are those of the plain form to the last bit. ``airway/_apnoea.c`` is
-    this function in C, line for line: change both together.
+    this function in C, line for line (its ``step``): change both together.
     """
     v_o2, v_n2, pool, hb_cap, flow, kept, shunt, bv, p50 = state[:9]
     o2_in, n2_in, paco2_start, dry, use_long, use_short = state[9:]
@@ -405,7 +424,7 @@ def loop_python(
     return t95, t90, t80, tuple(points)
 
 
-def _load_compiled() -> Callable[..., RawCourse] | None:
+def _load_compiled() -> Callable[..., tuple[RawCourse, ...]] | None:
     """The compiled loop, unless it is not built or AIRWAY_PURE_PYTHON is set."""
     if os.environ.get("AIRWAY_PURE_PYTHON"):
         return None
@@ -458,10 +477,22 @@ def _minutes(seconds: float | None) -> float | None:
 
 _HB_ASSUMED = f"haemoglobin not given: {HB_PREGNANT_G_PER_L:g} g/L assumed"
 _POOR_LABEL = f"poor pre-oxygenation (end-tidal O2 {FEO2_POOR:g})"
-_NASAL = (
-    ("nasal_low_flow", "plus low-flow nasal O2 through apnoea", FO2_NASAL_LOW_FLOW),
-    ("nasal_high_flow", "plus high-flow nasal O2 through apnoea", FO2_NASAL_HIGH_FLOW),
+_NASAL_LABELS = (
+    "plus low-flow nasal O2 through apnoea",
+    "plus high-flow nasal O2 through apnoea",
 )
+
+
+# The records rebuilt whole, one field changed: a named tuple's _replace costs several
+# times as much, and these run four times a plan.
+def _with_feo2(p: Physiology, feo2: float) -> Physiology:
+    """``p._replace(feo2=feo2)``."""
+    return Physiology._make((*p[:8], feo2, p[9]))
+
+
+def _drawing_in(state: LoopState, fo2: float) -> LoopState:
+    """``state`` with gas of O2 fraction ``fo2`` drawn in from the pharynx."""
+    return LoopState._make((*state[:9], fo2 - 1.0, 1.0 - fo2, *state[11:]))
 
 
 def _scenario(cid: str, label: str, feo2: float, fo2: float, course: Course) -> Scenario:
@@ -505,20 +536,27 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         feo2,
     )
     start = start_state(base)
-    assessed = _course(start)
-    fo2 = base.pharyngeal_fo2
-    poor = _course(start_state(base._replace(feo2=FEO2_POOR)), curve=False)
-    scenarios = [
-        _scenario("as_assessed", f"pre-oxygenated to end-tidal O2 {feo2:g}", feo2, fo2, assessed),
-        _scenario("poor_preoxygenation", _POOR_LABEL, FEO2_POOR, fo2, poor),
-    ]
     above = _bmi_above_reference(weight, height)
-    for cid, label, nasal_fo2 in _NASAL:
-        # Nasal O2 changes only the gas drawn in during apnoea: the start is the same
-        # (as :func:`with_nasal_o2` gives it).
-        glottic = _glottic_fo2(nasal_fo2, above)
-        state = start._replace(o2_in=glottic - 1.0, n2_in=1.0 - glottic)
-        scenarios.append(_scenario(cid, label, feo2, glottic, _course(state, curve=False)))
+    # Nasal O2 changes only the gas drawn in during apnoea: the start is the same (as
+    # :func:`with_nasal_o2` gives it).
+    low = _glottic_fo2(FO2_NASAL_LOW_FLOW, above)
+    high = _glottic_fo2(FO2_NASAL_HIGH_FLOW, above)
+    assessed, poor, low_flow, high_flow = _courses(
+        (
+            start,
+            start_state(_with_feo2(base, FEO2_POOR)),
+            _drawing_in(start, low),
+            _drawing_in(start, high),
+        ),
+        (True, False, False, False),
+    )
+    room = base.pharyngeal_fo2
+    scenarios = (
+        _scenario("as_assessed", f"pre-oxygenated to end-tidal O2 {feo2:g}", feo2, room, assessed),
+        _scenario("poor_preoxygenation", _POOR_LABEL, FEO2_POOR, room, poor),
+        _scenario("nasal_low_flow", _NASAL_LABELS[0], feo2, low, low_flow),
+        _scenario("nasal_high_flow", _NASAL_LABELS[1], feo2, high, high_flow),
+    )
     curve = assessed.curve
     t90, t80 = scenarios[0].minutes_to_spo2_90, scenarios[0].minutes_to_spo2_80  # as assessed
     return Oxygenation(
@@ -526,7 +564,7 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
         minutes_to_spo2_80=t80,
         horizon_minutes=HORIZON_MIN,
         short=t90 is not None and t90 < SHORT_MINUTES,
-        scenarios=tuple(scenarios),
+        scenarios=scenarios,
         curve=curve,
         inputs={
             "frc_ml": float(round(base.frc_ml)),

@@ -282,8 +282,19 @@ def test_compiled_loop_refuses_a_bad_call() -> None:
         pytest.skip("airway._apnoea is not built here")
     from airway import _apnoea
 
+    constants = oxygenation._LOOP_CONSTANTS
+    state = oxygenation.start_state(oxygenation.physiology(70, 165))
+    assert len(_apnoea.run((state,), constants, 60.0, (True,), 10.0)) == 1
     with pytest.raises(TypeError):
-        _apnoea.run((1.0, 2.0), (), 60.0, True, 10.0)  # a state of 2, not 15
+        _apnoea.run(((1.0, 2.0),), constants, 60.0, (True,), 10.0)  # a state of 2, not 15
+    with pytest.raises(TypeError):
+        _apnoea.run((1.0,), constants, 60.0, (True,), 10.0)  # a number, not a state
+    with pytest.raises(TypeError):
+        _apnoea.run((state,), (), 60.0, (True,), 10.0)  # no constants
+    with pytest.raises(TypeError):
+        _apnoea.run((state,) * 9, constants, 60.0, (True,) * 9, 10.0)  # more than 8
+    with pytest.raises(TypeError):
+        _apnoea.run((state, state), constants, 60.0, (True,), 10.0)  # a flag short
     with pytest.raises(TypeError):
         _apnoea.run()  # type: ignore[call-arg]
 
@@ -366,3 +377,38 @@ def test_compiled_rounding_of_the_curve_is_pythons_round() -> None:
         got, want = _apnoea.round_percent(v), round(100 * v, 1)
         assert got == want and math.copysign(1, got) == math.copysign(1, want), v
     assert math.isnan(_apnoea.round_percent(math.nan))
+
+
+@pytest.mark.parametrize("loop", LOOPS)
+def test_scenarios_run_together_equal_each_run_alone(
+    loop: str, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """The compiled loop steps up to eight scenarios in turn in one call: each must come
+    out exactly as when it runs alone, its curve recorded only when asked."""
+    import random
+
+    from airway import oxygenation
+    from airway.oxygenation import _courses, physiology, simulate, start_state
+
+    if loop == "python":
+        monkeypatch.setattr(oxygenation, "_compiled_loop", None)
+    elif not oxygenation.compiled():
+        pytest.skip("airway._apnoea is not built here (no C compiler at install)")
+    rng = random.Random(8)
+    for size in (1, 2, 3, 4, 8, 5, 7, 6) * 8:
+        people = [
+            physiology(
+                weight_kg=rng.uniform(35, 250),
+                height_cm=rng.uniform(125, 205),
+                in_labour=rng.random() < 0.4,
+                feo2=rng.uniform(0.5, 0.95),
+                pharyngeal_fo2=rng.choice([0.21, 0.5, 1.0]),
+            )
+            for _ in range(size)
+        ]
+        flags = tuple(rng.random() < 0.5 for _ in range(size))
+        together = _courses(tuple(start_state(p) for p in people), flags)
+        alone = tuple(simulate(p, curve=f) for p, f in zip(people, flags, strict=True))
+        assert together == alone
+    with pytest.raises(TypeError):
+        _courses((start_state(people[0]),) * 9, (False,) * 9)
