@@ -412,3 +412,14 @@ def test_scenarios_run_together_equal_each_run_alone(
         assert together == alone
     with pytest.raises(TypeError):
         _courses((start_state(people[0]),) * 9, (False,) * 9)
+
+
+def test_records_rebuilt_with_one_field_changed_equal_replace() -> None:
+    """The scenarios rebuild a record with one field changed by position (cheaper than
+    ``_replace``): a field added or moved must not shift what they change."""
+    from airway.oxygenation import _drawing_in, _with_feo2, physiology, start_state
+
+    p = physiology(82.5, 161, in_labour=True, haemoglobin_g_per_l=104)
+    assert _with_feo2(p, 0.7) == p._replace(feo2=0.7)
+    s = start_state(p)
+    assert _drawing_in(s, 0.63) == s._replace(o2_in=0.63 - 1.0, n2_in=1.0 - 0.63)
