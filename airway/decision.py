@@ -166,6 +166,14 @@ def _recommend(total: int) -> str:
     return "proceed" if total > 0 else "wake" if total < 0 else "balanced"
 
 
+# The decision's sources, the same for every woman.
+_BASIS = (
+    FACTOR_LIST_EVIDENCE.describe(),
+    GRADING_EVIDENCE.describe(),
+    POINTS_EVIDENCE.describe(),
+)
+
+
 def decide(assessment: Assessment, body: BodySize) -> Decision:
     """Pre-induction recommendation, with the direction of every factor."""
     c = assessment.context
@@ -216,10 +224,3 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
         ),
         basis=_BASIS,
     )
-
-
-_BASIS = (
-    FACTOR_LIST_EVIDENCE.describe(),
-    GRADING_EVIDENCE.describe(),
-    POINTS_EVIDENCE.describe(),
-)

@@ -168,7 +168,7 @@ _AFTER_STEP = lasting(
 
 # The steps' sources, the same for every woman.
 _PREOX_BASIS = PREOX_EVIDENCE.describe()
-_SGA_BASIS = SGA_ATTEMPTS_EVIDENCE.describe()
+_SGA_ATTEMPTS_BASIS = SGA_ATTEMPTS_EVIDENCE.describe()
 _CICO_BASIS = f"{CICO_EVIDENCE.describe()}; {PERIMORTEM_EVIDENCE.describe()}"
 
 
@@ -192,7 +192,7 @@ def _steps(
             f"Predicted time to SpO2 90% is short ({t90}): high-flow nasal oxygen set up, "
             "fewest attempts, front-of-neck kit open.",
         )
-    steps = (
+    return (
         Step(
             id="brief",
             phase="before induction",
@@ -279,7 +279,7 @@ def _steps(
                 "Ease cricoid force during insertion.",
                 "If it fails: two-person face-mask ventilation with an oral airway.",
             ),
-            basis=_SGA_BASIS,
+            basis=_SGA_ATTEMPTS_BASIS,
         ),
         Step(
             id="wake_or_proceed",
@@ -319,7 +319,6 @@ def _steps(
         ),
         _AFTER_STEP,
     )
-    return steps
 
 
 def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[str]:

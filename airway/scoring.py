@@ -140,10 +140,8 @@ def _evaluate(
     if factor.role == "difficulty":
         contribution = round(fixed.log_weight * units, 4)
     # The absent result with what this finding changes (present, contribution, detail).
-    a = fixed.absent
-    return FactorResult(
-        a[0], a[1], a[2], a[3], True, a[5], contribution, detail, a[8], a[9], a[10], a[11], a[12]
-    )
+    absent = fixed.absent  # fields: id..kind, present, weight, contribution, detail, source..
+    return FactorResult(*absent[:4], True, absent[5], contribution, detail, *absent[8:])
 
 
 _SHOWN_THRESHOLDS: tuple[float, float, float] = (

@@ -102,3 +102,30 @@ def test_heavier_never_lowers_index(weight: float, height: float, extra: float) 
     a = _risk(patient={"weight_kg": weight, "height_cm": height})
     b = _risk(patient={"weight_kg": min(300, weight + extra), "height_cm": height})
     assert b.index >= a.index - 1e-9
+
+
+def test_present_factor_result_keeps_its_catalogue_fields() -> None:
+    """A present factor's result is built by position from the prebuilt absent one: its
+    catalogue fields must land in their own places. Mallampati 3: relative risk 7.58
+    (Rocke 1992); BMI 95 kg at 160 cm is 37.1."""
+    from airway.factors import CATALOGUE
+
+    a = make(patient={"weight_kg": 95, "height_cm": 160}, airway={"mallampati": 3})
+    risk = score(a, body_size(95, 160, None))
+    by_id = {f.id: f for f in CATALOGUE}
+    for r in (x for x in risk.factors if x.present):
+        f = by_id[r.id]
+        assert (r.label, r.role, r.kind, r.weight, r.source, r.prepares) == (
+            f.label,
+            f.role,
+            f.kind,
+            f.weight,
+            f.evidence.source,
+            f.prepares,
+        )
+        assert r.evidence == f.evidence.describe() and r.basis == f.evidence.basis
+    mp3 = next(r for r in risk.factors if r.id == "mallampati_3")
+    assert mp3.present and mp3.weight == 7.58 and mp3.source == "rocke1992"
+    assert mp3.contribution == round(math.log(7.58), 4)
+    bmi = next(r for r in risk.factors if r.id == "bmi")
+    assert bmi.detail.startswith("BMI 37.1")
