@@ -76,6 +76,7 @@ MIN_FONT_PT = 8.0
 ONE_PAGE_UP_TO_LEVEL = 2  # levels 1-2 on one page; 3-4 on two at most
 BODY_PT = 8.5
 KEY_VALUE_PT = 11.0
+CURVE_TITLE = "SpO2 % by minutes of apnoea, as assessed (model estimate)"
 LEVEL_PT = 14.0
 
 
@@ -342,7 +343,7 @@ def _curve(plan: Plan, width: float) -> Drawing:
     for minutes, spo2 in points:
         flat.extend(xy(minutes, spo2))
     d.add(PolyLine(flat, strokeColor=ACCENT, strokeWidth=1.5))
-    d.add(_label(0, y0 + h + 4, "SpO2 % by minutes of apnoea, as assessed (model estimate)"))
+    d.add(_label(0, y0 + h + 4, CURVE_TITLE))
     return d
 
 
@@ -855,13 +856,12 @@ def _layout(
     st: dict[str, ParagraphStyle],
     dense: bool,
     head: tuple[list[object], float],
-) -> tuple[list[PageTemplate], list[object], bool]:
-    """Page templates, the story that flows through them, and whether a one-page plan
-    looks likely to fit (its column content measured against the columns' room)."""
+) -> tuple[list[PageTemplate], list[object]]:
+    """Page templates and the story that flows through them."""
     width = size[0] - (MARGINS_MM["left"] + MARGINS_MM["right"]) * mm
     usable = size[1] - (MARGINS_MM["top"] + MARGINS_MM["bottom"]) * mm
-    # Dense (levels 1-2 that overflow one page): three narrower columns waste less
-    # of each line on short checklist items.
+    # Dense (every one-page plan, and a two-page plan that would spill): three
+    # narrower columns waste less of each line on short checklist items.
     columns = 3 if dense else 2
     col = _column_width(width, columns)
     lists = {c.sheet: c for c in plan.checklists}
@@ -883,10 +883,7 @@ def _layout(
     story: list[object] = [NextPageTemplate("columns"), *top, FrameBreak()]
     if plan.risk.level <= ONE_PAGE_UP_TO_LEVEL:
         steps = _steps(plan, col, st, full=False)
-        flowing = [*reference, *brief, *steps, *after, *_closing(plan, st)]
-        # A column break wastes part of a line or a table row: keep some slack.
-        fits = _height(flowing, col, stop_above=FIT_SLACK * room) <= FIT_SLACK * room
-        return templates, [*story, *flowing], fits
+        return templates, [*story, *reference, *brief, *steps, *after, *_closing(plan, st)]
     # Higher levels: page 2 opens with every action of the sequence, full width. The
     # reference sections that do not fit under a tall head (many findings) follow the
     # actions there, whole, rather than spill onto a page of their own.
@@ -896,7 +893,7 @@ def _layout(
     first, later = _sections_that_fit(sections, col, FIT_SLACK * room)
     story += [*first, NextPageTemplate("actions"), PageBreak(), *steps, FrameBreak()]
     story += [NextPageTemplate("columns"), *later, *brief, *after, *_closing(plan, st)]
-    return templates, story, True
+    return templates, story
 
 
 def _sections_that_fit(
@@ -939,14 +936,11 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
         ]
         return top, min(usable, _height(top, width) + 2)
 
-    head = make_head()  # measured once; shared by a measured-too-long first try
+    head = make_head()
 
     def build(dense: bool) -> bytes:
         buf = io.BytesIO()
-        templates, story, fits = _layout(plan, size, st, dense, head)
-        if not (fits or dense):
-            # Measured too long for one page: go straight to the denser layout.
-            return build(dense=True)
+        templates, story = _layout(plan, size, st, dense, head)
         doc = BaseDocTemplate(
             buf,
             pagesize=size,
@@ -966,18 +960,20 @@ def render_plan_pdf(plan: Plan, paper: str = "A4") -> bytes:
             raise PdfLayoutError(f"the plan could not be laid out on paper: {exc}") from None
         return buf.getvalue()
 
-    pdf = build(dense=False)
+    # Levels 1 and 2 belong on one page, every one of them set alike: three columns,
+    # the apnoea scenarios as a table without the curve, equipment by name (its sizes
+    # are in the key block, the rest on the trolley sheet).
     one_page = plan.risk.level <= ONE_PAGE_UP_TO_LEVEL
-    if pages[-1] > (1 if one_page else 2):
-        # Levels 1 and 2 belong on one page, 3 and 4 on two: drop the curve (its numbers
-        # are in the table) and set three columns. The first build has drawn the head's
-        # flowables; lay out fresh ones.
+    pdf = build(dense=one_page)
+    if not one_page and pages[-1] > 2:
+        # Levels 3 and 4 belong on two pages: a plan that would need a third is set
+        # dense too. The first build has drawn the head's flowables; lay out fresh ones.
         head = make_head()
         pdf = build(dense=True)
-        if one_page and pages[-1] > 1:
-            # Still a few lines over: the same type with its lines set closer. A plan
-            # that spills even so keeps its second page; nothing is ever left out.
-            st = _styles(tight=True)
-            head = make_head()
-            pdf = build(dense=True)
+    if one_page and pages[-1] > 1:
+        # A few lines over: the same type with its lines set closer. A plan that
+        # spills even so keeps its second page; nothing is ever left out.
+        st = _styles(tight=True)
+        head = make_head()
+        pdf = build(dense=True)
     return pdf

@@ -88,3 +88,47 @@ def test_quick_builds_one_checker_per_kind_of_option(monkeypatch) -> None:
     assert result.exit_code == 0, result.output
     options = sum(1 for p in typer.main.get_command(app).commands["quick"].params)  # type: ignore[attr-defined]
     assert options >= 25 and 0 < len(built) <= 10
+
+
+def test_only_the_console_script_turns_the_collector_off_before_typer_loads() -> None:
+    """The console script turns cyclic collection off before typer and pydantic are
+    imported (their start-up would set it off for nothing); airway as a library never
+    touches it. The installed ``airway`` command is that script."""
+    import tomllib
+
+    probe = (
+        "import builtins, gc, sys\n"
+        "seen = {}\n"
+        "real = builtins.__import__\n"
+        "def spy(name, *a, **k):\n"
+        "    if name == 'typer' and 'typer' not in seen:\n"
+        "        seen['typer'] = gc.isenabled()\n"
+        "    return real(name, *a, **k)\n"
+        "builtins.__import__ = spy\n"
+        "import MODULE\n"
+        "print(seen.get('typer'), gc.isenabled())\n"
+    )
+    for module, expected in (("airway.console", "False False"), ("airway.cli", "True True")):
+        out = subprocess.run(
+            [sys.executable, "-c", probe.replace("MODULE", module)],
+            capture_output=True,
+            text=True,
+            check=True,
+            cwd=ROOT,
+        )
+        assert out.stdout.split() == expected.split(), module
+    scripts = tomllib.loads((ROOT / "pyproject.toml").read_text())["project"]["scripts"]
+    assert scripts["airway"] == "airway.console:main"
+
+
+def test_command_annotations_are_objects_not_strings() -> None:
+    """typer reads every command's annotations at each run; as strings they would be
+    compiled and evaluated each time (cli.py has no postponed annotations)."""
+    import inspect
+
+    for info in app.registered_commands:
+        assert info.callback is not None
+        annotations = inspect.get_annotations(info.callback)
+        assert annotations, info.callback.__name__
+        text = [k for k, v in annotations.items() if isinstance(v, str)]
+        assert not text, (info.callback.__name__, text)

@@ -464,6 +464,27 @@ def test_a_level_2_plan_that_spilled_when_dense_is_set_tighter_on_one_page(data)
     assert min(_font_sizes(pdf)) >= 8  # closer lines, never smaller type
 
 
+def test_every_one_page_plan_is_set_alike(tmp_path: Path) -> None:
+    """Airway levels 1 and 2 are always set in the one-page layout (three columns, the
+    apnoea scenarios as a table without the curve), even a plan short enough for two
+    columns: each part is in the same place on every such plan. This woman's plan once
+    fitted two columns with the curve. Two-page plans (levels 3 and 4) keep the curve."""
+    from airway.render_pdf import CURVE_TITLE
+
+    short = build_plan(
+        make(
+            patient={"weight_kg": 50.3, "height_cm": 170},
+            context={"urgency_category": 2, "end_tidal_o2": 0.64},
+        )
+    )
+    assert short.risk.level == 1
+    text = _text(render_plan_pdf(short), tmp_path)
+    assert "Minutes to SpO2 of" in text and CURVE_TITLE not in text
+    high = build_plan(read_assessment(next(p for p in EXAMPLES if p.name.startswith("severe"))))
+    assert high.risk.level >= 3
+    assert CURVE_TITLE in _text(render_plan_pdf(high), tmp_path)
+
+
 def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
     """A unit's checklists with every item and heading at the longest allowed, and its
     catalogue with every name at the longest allowed, still lay out: plans at levels 1
