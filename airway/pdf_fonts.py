@@ -1,7 +1,7 @@
 """Which typeface a PDF is set in: the bundled cut of DejaVu Sans, or the whole font.
 
 Every PDF is set in DejaVu Sans (it prints ≥, µ, – and accented names). Parsing the
-whole font takes reportlab about 15 ms a face, a large part of a one-page plan's
+whole font takes reportlab about 10 ms a face, a large part of a one-page plan's
 start-up, for some 6,000 glyphs of which a plan uses a few dozen. So the package
 carries a cut of it, "Airway Sans" (``airway/data/fonts``, made by
 ``tools/make_fonts.py``: DejaVu Sans and DejaVu Sans Bold kept to the characters in
@@ -23,19 +23,25 @@ from collections.abc import Iterable, Iterator
 from enum import Enum
 from typing import NamedTuple
 
-# Unicode blocks kept in the bundled cut (inclusive code point ranges).
+# Characters kept in the bundled cut (inclusive code point ranges): those of the
+# renderers' words, the shipped data and checklists, and of names written in Latin
+# or Greek script. Each glyph kept costs start-up time (reportlab reads every glyph's
+# entry when it loads a face), so the rarer blocks are left to the whole font: text
+# with a character outside the cut is set in the system's DejaVu Sans, which looks
+# the same, only loads slower.
 COVERED_RANGES: tuple[tuple[int, int], ...] = (
     (0x0020, 0x007E),  # Basic Latin
-    (0x00A0, 0x024F),  # Latin-1 Supplement, Latin Extended-A and -B
-    (0x0370, 0x03FF),  # Greek (µ, α, β in clinical text)
-    (0x2000, 0x206F),  # General Punctuation (– — • …)
-    (0x2070, 0x209F),  # superscripts and subscripts
-    (0x20A0, 0x20CF),  # currency
-    (0x2100, 0x214F),  # letterlike symbols
-    (0x2190, 0x21FF),  # arrows
-    (0x2200, 0x22FF),  # mathematical operators (≥ ≤ ≈)
+    (0x00A0, 0x017F),  # Latin-1 Supplement and Latin Extended-A (° ² µ × and names)
+    (0x0218, 0x021B),  # Romanian S and T with comma below
+    (0x0370, 0x03FF),  # Greek (α, β in clinical text)
+    (0x2010, 0x2027),  # dashes, quotation marks, bullet, ellipsis
+    (0x2030, 0x203A),  # per mille, primes, single angle quotation marks
+    (0x2190, 0x2199),  # arrows
+    (0x2212, 0x2212),  # minus sign
+    (0x2248, 0x2248),  # almost equal to
+    (0x2260, 0x2265),  # not equal, identical, less and greater than or equal to
     (0x2500, 0x257F),  # box drawing
-    (0x25A0, 0x25FF),  # geometric shapes
+    (0x25A0, 0x25CF),  # squares, triangles and circles
     (0x2610, 0x2612),  # ballot boxes
     (0x26A0, 0x26A0),  # warning sign
     (0x2713, 0x2718),  # check marks and crosses

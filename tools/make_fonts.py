@@ -53,7 +53,8 @@ def main() -> None:
     for source, target, postscript, style in zip(
         SYSTEM_FILES, BUNDLED_FILES, BUNDLED, ("Regular", "Bold"), strict=True
     ):
-        font = TTFont(folder / source)
+        # Keep the source's timestamps, so that every run writes the same bytes.
+        font = TTFont(folder / source, recalcTimestamp=False)
         options = subset.Options()
         options.layout_features = []
         options.name_IDs = ["*"]
