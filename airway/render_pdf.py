@@ -10,10 +10,11 @@ the sequence and the unit's checklists. No text is set below
 two at most, the second for the full sequence.
 
 Only this module imports reportlab, and only when a PDF is asked for; the SpO2
-curve is drawn with plain shapes so that reportlab's chart package is never
-loaded. Every piece of text from the user or the plan is XML-escaped before it
-reaches reportlab's paragraph markup. Output is reproducible: invariant mode
-fixes the dates and the document id, so the same plan gives the same bytes.
+curve and the factors' bars are drawn straight on the page, so that reportlab's
+graphics package is never loaded. Every piece of text from the user or the plan
+is XML-escaped before it reaches reportlab's paragraph markup. Output is
+reproducible: invariant mode fixes the dates and the document id, so the same
+plan gives the same bytes.
 """
 
 from __future__ import annotations
@@ -23,7 +24,6 @@ import os
 from collections.abc import Sequence
 from pathlib import Path
 
-from reportlab.graphics.shapes import Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A4, letter
 from reportlab.lib.styles import ParagraphStyle
@@ -33,6 +33,7 @@ from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.pdfgen.canvas import Canvas
 from reportlab.platypus import (
     BaseDocTemplate,
+    Flowable,
     Frame,
     FrameBreak,
     NextPageTemplate,
@@ -290,33 +291,76 @@ def _grid(
     return table
 
 
-def _drawing(width: float, height: float) -> Drawing:
-    # Without initialFontName the renderer starts in Helvetica, which is not embedded.
-    d = Drawing(width, height)
-    d.initialFontName = font()
-    return d
+class _Sketch(Flowable):
+    """A few boxes, lines and labels set straight on the page: the factors' bars and
+    the SpO2 curve. reportlab's graphics package would draw the same, but loading it
+    costs start-up time that these few shapes do not need. Drawn in that order:
+    boxes, then lines, then labels on top."""
+
+    def __init__(self, width: float, height: float) -> None:
+        super().__init__()
+        self.width, self.height = width, height
+        self.boxes: list[tuple[float, float, float, float, colors.Color]] = []
+        self.lines: list[tuple[tuple[float, ...], colors.Color, float, bool]] = []
+        self.labels: list[tuple[float, float, str, str]] = []
+
+    def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:
+        return self.width, self.height
+
+    def box(self, x: float, y: float, w: float, h: float, colour: colors.Color) -> None:
+        self.boxes.append((x, y, w, h, colour))
+
+    def line(
+        self, points: Sequence[float], colour: colors.Color, width: float, dash: bool = False
+    ) -> None:
+        """A line through ``points`` (x0, y0, x1, y1, ...)."""
+        self.lines.append((tuple(points), colour, width, dash))
+
+    def label(self, x: float, y: float, text: str, anchor: str = "start") -> None:
+        """Text at (x, y), which is where it starts, ends ("end") or its middle ("middle")."""
+        self.labels.append((x, y, text, anchor))
+
+    def draw(self) -> None:
+        c = self.canv
+        c.saveState()
+        for x, y, w, h, colour in self.boxes:
+            c.setFillColor(colour)
+            c.rect(x, y, w, h, stroke=0, fill=1)
+        for points, colour, width, dash in self.lines:
+            c.setStrokeColor(colour)
+            c.setLineWidth(width)
+            c.setDash([2, 2] if dash else [])
+            path = c.beginPath()
+            path.moveTo(points[0], points[1])
+            for n in range(2, len(points) - 1, 2):
+                path.lineTo(points[n], points[n + 1])
+            c.drawPath(path, stroke=1, fill=0)
+        c.setFillColor(INK)
+        c.setFont(font(), MIN_FONT_PT)
+        for x, y, text, anchor in self.labels:
+            if anchor == "end":
+                c.drawRightString(x, y, text)
+            elif anchor == "middle":
+                c.drawCentredString(x, y, text)
+            else:
+                c.drawString(x, y, text)
+        c.restoreState()
 
 
-def _bar(value: float, largest: float, width: float) -> Drawing:
+def _bar(value: float, largest: float, width: float) -> _Sketch:
     """One horizontal bar: a factor's contribution, scaled to the largest one."""
-    d = _drawing(width, 8)
+    d = _Sketch(width, 8)
     length = 0.0 if largest <= 0 else (width - 2) * value / largest
     if length > 0:
-        d.add(Rect(0, 1.5, length, 6, fillColor=ACCENT, strokeColor=None))
+        d.box(0, 1.5, length, 6, ACCENT)
     return d
 
 
-def _label(x: float, y: float, text: str, anchor: str = "start") -> String:
-    return String(
-        x, y, text, fontName=font(), fontSize=MIN_FONT_PT, textAnchor=anchor, fillColor=INK
-    )
-
-
-def _curve(plan: Plan, width: float) -> Drawing:
+def _curve(plan: Plan, width: float) -> _Sketch:
     """SpO2 against minutes of apnoea, as assessed, with the 90% line."""
     oxy = plan.oxygenation
     height = 54.0
-    d = _drawing(width, height)
+    d = _Sketch(width, height)
     x0, y0, w, h = 30.0, 14.0, width - 40.0, height - 26.0
     points = [(t / 60.0, s) for t, s in oxy.curve] or [(0.0, 100.0)]
     x_max = max(1.0, points[-1][0])
@@ -326,24 +370,21 @@ def _curve(plan: Plan, width: float) -> Drawing:
         clipped = min(hi, max(lo, spo2))
         return x0 + w * minutes / x_max, y0 + h * (clipped - lo) / (hi - lo)
 
-    d.add(Line(x0, y0, x0 + w, y0, strokeColor=INK, strokeWidth=0.5))
-    d.add(Line(x0, y0, x0, y0 + h, strokeColor=INK, strokeWidth=0.5))
+    d.line((x0, y0, x0 + w, y0), INK, 0.5)
+    d.line((x0, y0, x0, y0 + h), INK, 0.5)
     for value in (75, 80, 90, 100):
         _x, y = xy(0, value)
-        d.add(Line(x0 - 2, y, x0, y, strokeColor=INK, strokeWidth=0.5))
-        d.add(_label(x0 - 4, y - 2.8, f"{value}", "end"))
+        d.line((x0 - 2, y, x0, y), INK, 0.5)
+        d.label(x0 - 4, y - 2.8, f"{value}", "end")
     step = 1 if x_max <= 8 else 2 if x_max <= 16 else 5
     for minute in range(0, int(x_max) + 1, step):
         x, _y = xy(minute, lo)
-        d.add(Line(x, y0 - 2, x, y0, strokeColor=INK, strokeWidth=0.5))
-        d.add(_label(x, y0 - 10, f"{minute}", "middle"))
+        d.line((x, y0 - 2, x, y0), INK, 0.5)
+        d.label(x, y0 - 10, f"{minute}", "middle")
     _x, y90 = xy(0, 90)
-    d.add(Line(x0, y90, x0 + w, y90, strokeColor=WARN, strokeWidth=0.8, strokeDashArray=[2, 2]))
-    flat: list[float] = []
-    for minutes, spo2 in points:
-        flat.extend(xy(minutes, spo2))
-    d.add(PolyLine(flat, strokeColor=ACCENT, strokeWidth=1.5))
-    d.add(_label(0, y0 + h + 4, CURVE_TITLE))
+    d.line((x0, y90, x0 + w, y90), WARN, 0.8, dash=True)
+    d.line([v for minutes, spo2 in points for v in xy(minutes, spo2)], ACCENT, 1.5)
+    d.label(0, y0 + h + 4, CURVE_TITLE)
     return d
 
 

@@ -81,3 +81,24 @@ def test_quick_to_the_terminal_imports_no_pdf_markdown_or_rich_code() -> None:
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == ""
+
+
+def test_a_plan_pdf_with_bars_and_curve_loads_no_reportlab_graphics(tmp_path) -> None:
+    """The factors' bars and the SpO2 curve are drawn straight on the page: a two-page
+    plan, which has both, never loads reportlab's graphics package."""
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    example = Path(__file__).parent.parent / "examples" / "severe-preeclampsia-category1.toml"
+    code = (
+        "import sys\n"
+        "from airway import build_plan, read_assessment\n"
+        "from airway.render_pdf import render_plan_pdf\n"
+        f"plan = build_plan(read_assessment({str(example)!r}))\n"
+        "assert plan.risk.level >= 3 and plan.risk.factors\n"
+        "render_plan_pdf(plan)\n"
+        "print(' '.join(m for m in sys.modules if m.startswith('reportlab.graphics')))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == ""
