@@ -5,10 +5,10 @@ the command line needs one ``except`` to turn them into a message and an exit
 code::
 
     AirwayError
-    ├── InputError (also ValueError)      bad assessment: file, field, value, allowed
-    │   └── CatalogueError                bad equipment catalogue or contact list
-    ├── ChecklistError (also ValueError)  bad checklist Markdown: file and line
-    └── OutputExistsError                 refusing to overwrite without --force
+    +-- InputError (also ValueError)      bad assessment: file, field, value, allowed
+    |   +-- CatalogueError                bad equipment catalogue or contact list
+    +-- ChecklistError (also ValueError)  bad checklist Markdown: file and line
+    +-- OutputExistsError                 refusing to overwrite without --force
 
 The library never prints and never exits; the CLI decides what the user sees.
 """

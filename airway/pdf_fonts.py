@@ -33,15 +33,17 @@ COVERED_RANGES: tuple[tuple[int, int], ...] = (
     (0x0020, 0x007E),  # Basic Latin
     (0x00A0, 0x017F),  # Latin-1 Supplement and Latin Extended-A (° ² µ × and names)
     (0x0218, 0x021B),  # Romanian S and T with comma below
-    (0x0370, 0x03FF),  # Greek (α, β in clinical text)
+    (0x0386, 0x03CE),  # Greek letters, with their accents (α, β in clinical text)
     (0x2010, 0x2027),  # dashes, quotation marks, bullet, ellipsis
     (0x2030, 0x203A),  # per mille, primes, single angle quotation marks
     (0x2190, 0x2199),  # arrows
     (0x2212, 0x2212),  # minus sign
     (0x2248, 0x2248),  # almost equal to
     (0x2260, 0x2265),  # not equal, identical, less and greater than or equal to
-    (0x2500, 0x257F),  # box drawing
-    (0x25A0, 0x25CF),  # squares, triangles and circles
+    (0x25A0, 0x25A1),  # black and white squares
+    (0x25B2, 0x25B3),  # up-pointing triangles
+    (0x25BC, 0x25BD),  # down-pointing triangles
+    (0x25CB, 0x25CF),  # circles
     (0x2610, 0x2612),  # ballot boxes
     (0x26A0, 0x26A0),  # warning sign
     (0x2713, 0x2718),  # check marks and crosses

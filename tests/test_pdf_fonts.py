@@ -53,7 +53,7 @@ def test_outside_cut() -> None:
     assert outside_cut(["Zoë Ångström µg ≥ 3 – ok • ☐ ✓ ș"]) == set()
     assert outside_cut(["line\nbreak\ttab"]) == set()
     assert outside_cut([f"name {CYRILLIC}", "王"]) == set(CYRILLIC) | {"王"}
-    assert outside_cut(["\u0378"]) == set()  # unassigned inside a kept block: not a gap
+    assert outside_cut(["\u03a2"]) == set()  # unassigned inside a kept range: not a gap
     # Names across Europe are in the cut; rarer Latin letters go to the whole font.
     assert outside_cut(["Małgorzata Dvořák Şahin Ğül Ștefan Ελένη"]) == set()
     assert outside_cut(["Lǚ Ǆ"]) == {"ǚ", "Ǆ"}
@@ -81,7 +81,7 @@ def test_cut_keeps_dejavu_glyphs_and_widths(bundled: str, system: str) -> None:
     whole = TTFont("whole-" + system, str(SYSTEM_DIR / system))
     kept = {c for lo, hi in COVERED_RANGES for c in range(lo, hi + 1)}
     drawn = kept & set(whole.face.charToGlyph)
-    assert len(drawn) > 600
+    assert len(drawn) > 400
     # 0xFFFF: the end marker of a format-4 character map, not a character
     assert set(cut.face.charToGlyph) - {0xFFFF} == drawn
     for code in sorted(drawn):
