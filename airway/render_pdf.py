@@ -21,8 +21,10 @@ from __future__ import annotations
 
 import io
 import os
+import weakref
 from collections.abc import Sequence
 from pathlib import Path
+from typing import Any
 
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A4, letter
@@ -46,6 +48,7 @@ from reportlab.platypus import (
 )
 from reportlab.platypus import Paragraph as _Paragraph
 from reportlab.platypus.doctemplate import LayoutError
+from reportlab.platypus.paragraph import cleanBlockQuotedText, textTransformFrags
 
 from . import __version__
 from .decision import DECISION_TITLE, SHORT, by_category_text
@@ -203,8 +206,37 @@ class Paragraph(_Paragraph):
         return size
 
 
-def _p(text: str, style: ParagraphStyle) -> Paragraph:
-    return Paragraph(escape(text), style)
+# What reportlab's markup parser makes of plain text in each style: one fragment
+# holding the style's font, size and colour. Worked out once per style, by parsing.
+_PLAIN_FRAGMENT: weakref.WeakKeyDictionary[ParagraphStyle, tuple[ParagraphStyle, Any]] = (
+    weakref.WeakKeyDictionary()
+)
+
+
+def plain_paragraph(text: str, style: ParagraphStyle) -> Paragraph:
+    """A paragraph of plain text: never read as markup.
+
+    reportlab parses every paragraph's markup, which for text without ``&``, ``<``
+    or ``>`` only ever gives one fragment in the paragraph's style; most of a plan's
+    paragraphs are such text, so that fragment is made here without the parser (a
+    test holds the two equal over many texts, and the PDFs are the same, byte for
+    byte).
+    """
+    clean = cleanBlockQuotedText(text)
+    if not clean or "&" in clean or "<" in clean or ">" in clean:
+        # Escaped, these become entities, and the parser splits the text at each one.
+        return Paragraph(escape(text), style)
+    known = _PLAIN_FRAGMENT.get(style)
+    if known is None:
+        probe = _Paragraph("x", style)
+        known = _PLAIN_FRAGMENT[style] = (probe.style, probe.frags[0])
+    parsed_style, fragment = known
+    frags = [fragment.clone(text=clean, link=[], us_lines=[])]
+    textTransformFrags(frags, parsed_style)
+    return Paragraph(clean, parsed_style, frags=frags)
+
+
+_p = plain_paragraph
 
 
 CELL_PADDING_PT = 2.0  # left and right of every table cell
@@ -225,7 +257,7 @@ def _fitted(cell: object, width: float, bold: bool, size: float) -> object:
             leading=size * 1.12,
             textColor=INK,
         )
-        return Paragraph(escape(cell), style)
+        return _p(cell, style)
     return cell
 
 

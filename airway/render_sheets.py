@@ -23,16 +23,15 @@ from reportlab.platypus import (
     Frame,
     KeepTogether,
     PageTemplate,
-    Paragraph,
     Spacer,
     Table,
     TableStyle,
 )
 
 from . import __version__
-from .markup import escape
 from .plan import RULES_VERSION
 from .render_pdf import MIN_FONT_PT, font, use_fonts
+from .render_pdf import plain_paragraph as _p
 from .sheets import BAND_HEIGHTS_CM, Sheet
 
 PAPERS = {"A4": A4, "A3": A3, "letter": letter, "tabloid": TABLOID}
@@ -85,10 +84,6 @@ def sheet_styles(paper: str, k: float | None = None) -> dict[str, ParagraphStyle
             "white", parent=body, fontName=font(bold=True), textColor=colors.white
         ),
     }
-
-
-def _p(text: str, style: ParagraphStyle) -> Paragraph:
-    return Paragraph(escape(text), style)
 
 
 def _bar(text: str, width: float, st: dict[str, ParagraphStyle]) -> Table:

@@ -8,6 +8,8 @@ import subprocess
 from pathlib import Path
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from pypdf import PdfReader
 from typer.testing import CliRunner
 
@@ -532,3 +534,42 @@ def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
             assert render_plan_pdf(plan, paper).startswith(b"%PDF")
     for kind in SHEETS:
         assert render_sheet_pdf(build_sheet(kind, lists, cat, ())).startswith(b"%PDF")
+
+
+def _fragments(paragraph: object) -> list[list[tuple[str, str]]]:
+    return [sorted((k, repr(v)) for k, v in vars(f).items()) for f in paragraph.frags]  # type: ignore[attr-defined]
+
+
+@settings(max_examples=300)
+@given(
+    text=st.text(
+        alphabet=st.one_of(
+            st.sampled_from(" \n\t\r\xa0&<>;'\"-–≥µ/#"),
+            st.characters(codec="utf-8", exclude_categories=("Cs",)),
+        ),
+        max_size=80,
+    ),
+    which=st.sampled_from(["body", "small", "h2", "key_value", "caution", "upper"]),
+)
+def test_plain_paragraphs_are_what_reportlabs_parser_makes(text: str, which: str) -> None:
+    """Plain text skips reportlab's markup parser (start-up time); what it gets must be
+    exactly what the parser makes of the escaped text: the same fragments, text and
+    style, for any text and each style (one with a text transform too)."""
+    from reportlab.lib.styles import ParagraphStyle
+    from reportlab.platypus import Paragraph as Reportlab
+
+    from airway.markup import escape
+    from airway.render_pdf import _styles, plain_paragraph, use_fonts
+
+    use_fonts()
+    styles = _styles()
+    style = (
+        ParagraphStyle("upper", parent=styles["body"], textTransform="uppercase")
+        if which == "upper"
+        else styles[which]
+    )
+    fast = plain_paragraph(text, style)
+    parsed = Reportlab(escape(text), style)
+    assert _fragments(fast) == _fragments(parsed)
+    assert fast.text == parsed.text
+    assert vars(fast.style) == vars(parsed.style)
