@@ -207,10 +207,9 @@ class Paragraph(_Paragraph):
 
 
 # What reportlab's markup parser makes of plain text in each style: one fragment
-# holding the style's font, size and colour. Worked out once per style, by parsing.
-_PLAIN_FRAGMENT: weakref.WeakKeyDictionary[ParagraphStyle, tuple[ParagraphStyle, Any]] = (
-    weakref.WeakKeyDictionary()
-)
+# holding the style's font, size and colour. Worked out once per style, by parsing;
+# held only while the style lives (the fragment does not refer to its style).
+_PLAIN_FRAGMENT: weakref.WeakKeyDictionary[ParagraphStyle, Any] = weakref.WeakKeyDictionary()
 
 
 def plain_paragraph(text: str, style: ParagraphStyle) -> Paragraph:
@@ -226,14 +225,15 @@ def plain_paragraph(text: str, style: ParagraphStyle) -> Paragraph:
     if not clean or "&" in clean or "<" in clean or ">" in clean:
         # Escaped, these become entities, and the parser splits the text at each one.
         return Paragraph(escape(text), style)
-    known = _PLAIN_FRAGMENT.get(style)
-    if known is None:
+    fragment = _PLAIN_FRAGMENT.get(style)
+    if fragment is None:
         probe = _Paragraph("x", style)
-        known = _PLAIN_FRAGMENT[style] = (probe.style, probe.frags[0])
-    parsed_style, fragment = known
+        if probe.style is not style:  # a reportlab that rewrites styles: always parse
+            return Paragraph(escape(text), style)
+        fragment = _PLAIN_FRAGMENT[style] = probe.frags[0]
     frags = [fragment.clone(text=clean, link=[], us_lines=[])]
-    textTransformFrags(frags, parsed_style)
-    return Paragraph(clean, parsed_style, frags=frags)
+    textTransformFrags(frags, style)
+    return Paragraph(clean, style, frags=frags)
 
 
 _p = plain_paragraph

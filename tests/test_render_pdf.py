@@ -573,3 +573,17 @@ def test_plain_paragraphs_are_what_reportlabs_parser_makes(text: str, which: str
     assert _fragments(fast) == _fragments(parsed)
     assert fast.text == parsed.text
     assert vars(fast.style) == vars(parsed.style)
+
+
+def test_plain_paragraph_fragments_go_with_their_styles() -> None:
+    """The fragment worked out per style is held only while its style lives: a clinic
+    list of a thousand PDFs must not keep every plan's styles (it once did)."""
+    import gc
+
+    from airway.render_pdf import _PLAIN_FRAGMENT
+
+    plan = build_plan(make())
+    for _ in range(3):
+        render_plan_pdf(plan)
+    gc.collect()
+    assert len(_PLAIN_FRAGMENT) == 0
