@@ -4,8 +4,6 @@ All formulas come from non-pregnant adults; none has been validated at term
 (the plan says so). Each function is pure and takes SI-ish units (kg, cm).
 """
 
-from __future__ import annotations
-
 from typing import NamedTuple
 
 from .sources import Evidence

@@ -22,8 +22,6 @@ generic trolley sheet conditions are not applied (every item shows) and values
 are not allowed.
 """
 
-from __future__ import annotations
-
 import functools
 import hashlib
 import json

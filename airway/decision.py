@@ -10,8 +10,6 @@ the points and the way they are summed are this project's rule. The tool
 recommends; the clinician ticks the final decision.
 """
 
-from __future__ import annotations
-
 from typing import NamedTuple
 
 from .assessment import Assessment

@@ -4,8 +4,6 @@ A dose here is a calculation aid: the anaesthetist checks and titrates it.
 Where sources disagree on the scalar, the dose carries the alternatives.
 """
 
-from __future__ import annotations
-
 import functools
 from typing import Literal, NamedTuple
 

@@ -5,8 +5,6 @@ default, or the unit's own file), so the plan never suggests a size that is not
 on the trolley.
 """
 
-from __future__ import annotations
-
 import hashlib
 import json
 from importlib import resources
@@ -99,7 +97,7 @@ class Catalogue(BaseModel):
     airway_adjuncts: Adjuncts
 
     @model_validator(mode="after")
-    def _front_of_neck_stocked(self) -> Catalogue:
+    def _front_of_neck_stocked(self) -> "Catalogue":
         if self.front_of_neck_tube_mm not in self.tracheal_tube_sizes_mm:
             raise ValueError(
                 f"front_of_neck_tube_mm {self.front_of_neck_tube_mm} is not among "

@@ -13,8 +13,6 @@ code::
 The library never prints and never exits; the CLI decides what the user sees.
 """
 
-from __future__ import annotations
-
 from typing import NamedTuple
 
 

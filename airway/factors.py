@@ -21,8 +21,6 @@ that returns ``None`` when the finding was not assessed, and a source id from
 :mod:`airway.sources`. ``tests/test_factors.py`` checks every entry.
 """
 
-from __future__ import annotations
-
 import math
 from collections.abc import Callable
 from typing import Literal, NamedTuple

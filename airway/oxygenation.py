@@ -15,8 +15,6 @@ memory, or a project calibration. The result is a model estimate with wide
 uncertainty, never a guarantee; the plan says so.
 """
 
-from __future__ import annotations
-
 import math
 import os
 from collections.abc import Callable
@@ -260,7 +258,7 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
 
 
 def _courses(
-    states: tuple[LoopState, ...], curves: tuple[bool, ...], horizon_min: float = HORIZON_MIN
+    states: tuple["LoopState", ...], curves: tuple[bool, ...], horizon_min: float = HORIZON_MIN
 ) -> tuple[Course, ...]:
     """Several scenarios in one run of the loop (at most :data:`MAX_SCENARIOS_A_RUN`)."""
     run = _compiled_loop if _compiled_loop is not None else loops_python

@@ -15,8 +15,6 @@ ever printed as an empty box that the system font could have drawn.
 No reportlab here: this module only decides; :mod:`airway.render_pdf` registers.
 """
 
-from __future__ import annotations
-
 import dataclasses
 import re
 from collections.abc import Iterable, Iterator

@@ -12,8 +12,6 @@ clinic list. Only what comes from outside is validated by pydantic: the
 assessment, unit files, and a saved plan read back (:func:`plan_from_data`).
 """
 
-from __future__ import annotations
-
 import json
 from functools import cache
 from typing import TYPE_CHECKING, Any, NamedTuple
@@ -142,7 +140,7 @@ def saved_object(text: str | bytes) -> dict[str, Any] | None:
 
 
 @cache
-def _plan_adapter() -> TypeAdapter[Plan]:
+def _plan_adapter() -> "TypeAdapter[Plan]":
     from pydantic import TypeAdapter
 
     return TypeAdapter(Plan)

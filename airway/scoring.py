@@ -7,8 +7,6 @@ one, were collinear in Rocke 1992), so the index *ranks* risk and is never
 shown as a probability.
 """
 
-from __future__ import annotations
-
 import math
 from typing import NamedTuple
 

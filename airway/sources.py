@@ -18,8 +18,6 @@ says how firmly the number stands:
 A test fails if any constant names a source id that is not registered here.
 """
 
-from __future__ import annotations
-
 from typing import Literal, NamedTuple
 
 Basis = Literal["published", "from_memory", "common_practice", "project_rule"]
