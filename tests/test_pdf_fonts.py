@@ -12,6 +12,8 @@ import io
 from pathlib import Path
 
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 from pypdf import PdfReader
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
@@ -158,3 +160,14 @@ def test_ward_board_with_a_name_outside_the_cut(tmp_path: Path) -> None:
     pdf = render_board_pdf(rows, "2026-12-02", 14, [])
     assert _fonts(pdf) <= {"DejaVuSans", "DejaVuSans-Bold"}
     assert CYRILLIC in _text(pdf) and "Zoë" in _text(pdf)
+
+
+@given(st.lists(st.text(alphabet=st.characters(codec="utf-8", exclude_categories=("Cs",)))))
+def test_outside_cut_is_every_character_of_no_kept_range(texts: list[str]) -> None:
+    """The characters found outside are exactly those in none of the kept ranges,
+    line breaks and tabs apart: worked out here from the ranges, one by one."""
+
+    def kept(ch: str) -> bool:
+        return ch in "\t\n\r" or any(lo <= ord(ch) <= hi for lo, hi in COVERED_RANGES)
+
+    assert outside_cut(texts) == {ch for text in texts for ch in text if not kept(ch)}
