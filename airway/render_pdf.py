@@ -128,12 +128,21 @@ def _system_font_dir(outside: set[str]) -> Path:
     for folder in FONT_DIRS:
         if folder and all(Path(folder, name).is_file() for name in SYSTEM_FILES):
             return Path(folder)
-    shown = " ".join(sorted(outside)[:10])
+    # Named by script, never shown: the characters may be those of her name.
+    scripts = sorted({_script(ch) for ch in outside})
     raise FontMissingError(
-        f"the text holds characters the bundled font lacks ({shown}); to print them, "
-        "install DejaVu Sans (fonts-dejavu-core) or set AIRWAY_FONT_DIR to a folder "
-        "holding DejaVuSans.ttf and DejaVuSans-Bold.ttf"
+        f"the text holds characters the bundled font lacks ({len(outside)} distinct, "
+        f"{'script' if len(scripts) == 1 else 'scripts'}: {', '.join(scripts)}); to print them, install DejaVu Sans (fonts-dejavu-core) or "
+        "set AIRWAY_FONT_DIR to a folder holding DejaVuSans.ttf and DejaVuSans-Bold.ttf"
     )
+
+
+def _script(ch: str) -> str:
+    """The writing system a character belongs to, from its Unicode name ("Cyrillic")."""
+    import unicodedata  # only when a PDF is refused
+
+    first = unicodedata.name(ch, "unnamed").split(" ")[0]
+    return first if len(first) <= 3 else first.capitalize()
 
 
 def _styles(tight: bool = False) -> dict[str, ParagraphStyle]:

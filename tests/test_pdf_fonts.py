@@ -138,7 +138,9 @@ def test_text_outside_the_cut_without_the_system_font(
     with pytest.raises(FontMissingError) as info:
         render_plan_pdf(build_plan(make(identity={"name": CYRILLIC})))
     message = str(info.value)
-    assert "fonts-dejavu-core" in message and all(ch in message for ch in CYRILLIC)
+    assert "fonts-dejavu-core" in message and "Cyrillic" in message
+    # The characters may be her name's: named by script, never repeated.
+    assert not any(ch in message for ch in CYRILLIC)
 
 
 @needs_system_font
