@@ -130,10 +130,11 @@ def _system_font_dir(outside: set[str]) -> Path:
             return Path(folder)
     # Named by script, never shown: the characters may be those of her name.
     scripts = sorted({_script(ch) for ch in outside})
+    named = f"{'script' if len(scripts) == 1 else 'scripts'}: {', '.join(scripts)}"
     raise FontMissingError(
         f"the text holds characters the bundled font lacks ({len(outside)} distinct, "
-        f"{'script' if len(scripts) == 1 else 'scripts'}: {', '.join(scripts)}); to print them, install DejaVu Sans (fonts-dejavu-core) or "
-        "set AIRWAY_FONT_DIR to a folder holding DejaVuSans.ttf and DejaVuSans-Bold.ttf"
+        f"{named}); to print them, install DejaVu Sans (fonts-dejavu-core) or set "
+        "AIRWAY_FONT_DIR to a folder holding DejaVuSans.ttf and DejaVuSans-Bold.ttf"
     )
 
 
