@@ -31,10 +31,10 @@ _PUBLIC = {
 
 if TYPE_CHECKING:
     from .assessment import Assessment
+    from .engine.plan import build_plan
+    from .engine.plan_model import Plan
     from .errors import AirwayError, InputError
     from .loading import assessment_from_mapping, parse_assessment, read_assessment
-    from .plan import build_plan
-    from .plan_model import Plan
 
 
 def __getattr__(name: str) -> Any:

@@ -1,3 +1,3 @@
-from .console import main
+from .cli import main
 
 main()
