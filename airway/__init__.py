@@ -1,49 +1,25 @@
 """airway: obstetric airway plans from one bedside assessment.
 
 Library first: :func:`read_assessment` (or :func:`parse_assessment`) gives a
-validated :class:`Assessment`; :func:`build_plan` turns it into a :class:`Plan`;
-the renderers in :mod:`airway.render_text`, :mod:`airway.render_markdown` and
-:mod:`airway.render_json` format it. The command line (:mod:`airway.cli`) is a
-thin layer over these.
+validated :class:`Assessment`; :func:`plan_for` turns it into a :class:`Plan`
+with the shipped unit files (or :func:`build_plan` with a unit's own catalogue
+and checklists); the renderers in :mod:`airway.render` format it. The command
+line (:mod:`airway.cli`) is a thin layer over these.
 
-The names below are imported when first used, so that ``import airway.cli``
-(or ``--version``) does not build every model first.
+The packages, in the direction data flows: the input models and loading at this
+level; :mod:`airway.unit` reads a unit's own files; :mod:`airway.engine` is the
+clinical computation (pure); :mod:`airway.workflows` is what a user does with it;
+:mod:`airway.render` formats plans; :mod:`airway.cli` is the command line.
 """
-
-from __future__ import annotations
-
-import importlib
-from typing import TYPE_CHECKING, Any
 
 __version__ = "0.1.0"
 
-# Public name -> the module that defines it.
-_PUBLIC = {
-    "AirwayError": "errors",
-    "InputError": "errors",
-    "Assessment": "assessment",
-    "assessment_from_mapping": "loading",
-    "parse_assessment": "loading",
-    "read_assessment": "loading",
-    "Plan": "plan_model",
-    "build_plan": "plan",
-}
-
-if TYPE_CHECKING:
-    from .assessment import Assessment
-    from .engine.plan import build_plan
-    from .engine.plan_model import Plan
-    from .errors import AirwayError, InputError
-    from .loading import assessment_from_mapping, parse_assessment, read_assessment
-
-
-def __getattr__(name: str) -> Any:
-    if name in _PUBLIC:
-        value = getattr(importlib.import_module(f".{_PUBLIC[name]}", __name__), name)
-        globals()[name] = value
-        return value
-    raise AttributeError(f"module 'airway' has no attribute {name!r}")
-
+from .assessment import Assessment
+from .engine.plan import build_plan
+from .engine.plan_model import Plan
+from .errors import AirwayError, InputError
+from .loading import assessment_from_mapping, parse_assessment, read_assessment
+from .workflows.planning import plan_for
 
 __all__ = [
     "AirwayError",
@@ -54,5 +30,6 @@ __all__ = [
     "assessment_from_mapping",
     "build_plan",
     "parse_assessment",
+    "plan_for",
     "read_assessment",
 ]

@@ -9,6 +9,8 @@ code::
     |   +-- CatalogueError                bad equipment catalogue or contact list
     +-- ChecklistError (also ValueError)  bad checklist Markdown: file and line
     +-- OutputExistsError                 refusing to overwrite without --force
+    +-- FontMissingError                  a PDF's text the font cannot draw (render/pdf/fonts)
+    +-- PdfLayoutError                    a plan that cannot be laid out (render/pdf/plan)
 
 The library never prints and never exits; the CLI decides what the user sees.
 """

@@ -138,7 +138,7 @@ def _complete_plans(folder: Path) -> int:
 def test_full_disk_mid_list_exit_1_finished_rows_complete(runner, tmp_path, monkeypatch):
     """The disk fills after some rows: exit 1 naming a file, no temporary left behind,
     every plan already under its name complete; --resume then finishes the list."""
-    import airway.batch  # noqa: F401 - imports the pool's pipes before os.write is patched
+    import airway.workflows.batch  # noqa: F401 - imports the pool's pipes before os.write is patched
 
     real_write, calls = os.write, {"n": 0}
 

@@ -10,11 +10,11 @@ from hypothesis import strategies as st
 from typer.testing import CliRunner
 
 from airway.cli import app
-from airway.clinic import read_clinic_list
+from airway.workflows.clinic import read_clinic_list
 from airway.errors import InputError
 from airway.fields import field_specs
 from airway.loading import parse_assessment
-from airway.plan import build_plan
+from airway import plan_for
 
 from .conftest import AIRWAY_FINDINGS
 
@@ -59,7 +59,7 @@ def _plan_or_input_error(text: str, fmt: str | None) -> None:
         assessment = parse_assessment(text, "fuzz", fmt)
     except InputError:
         return
-    build_plan(assessment)  # a valid assessment must always give a plan
+    plan_for(assessment)  # a valid assessment must always give a plan
 
 
 @settings(max_examples=600 * SCALE)
@@ -133,7 +133,7 @@ def test_clinic_list_cells(columns: list[str], cells: list[list[str]]) -> None:
         return
     for row in rows:
         if row.assessment is not None:
-            build_plan(row.assessment)
+            plan_for(row.assessment)
         else:
             assert row.problems
 
@@ -192,8 +192,8 @@ def test_every_valid_assessment_prints_within_its_pages(data, paper) -> None:
     from pypdf import PdfReader
 
     from airway.loading import assessment_from_mapping
-    from airway.render_pdf import render_plan_pdf
+    from airway.render.pdf.plan import render_plan_pdf
 
-    plan = build_plan(assessment_from_mapping(data))
+    plan = plan_for(assessment_from_mapping(data))
     pages = len(PdfReader(io.BytesIO(render_plan_pdf(plan, paper))).pages)
     assert pages <= (1 if plan.risk.level <= 2 and paper == "A4" else 2)

@@ -8,17 +8,17 @@ from pathlib import Path
 
 from pypdf import PdfReader
 
-from airway import build_plan
-from airway.checklists import load_checklists
+from airway import plan_for
+from airway.unit.checklists import load_checklists
 from airway.cli import app
-from airway.plan import RULES_VERSION
+from airway.engine.plan import RULES_VERSION
 
 from .conftest import ROOT, make
 
 
 def _test_names() -> set[str]:
     names: set[str] = set()
-    for path in (ROOT / "tests").glob("test_*.py"):
+    for path in (ROOT / "tests").rglob("test_*.py"):
         for node in ast.walk(ast.parse(path.read_text("utf-8"))):
             if isinstance(node, ast.FunctionDef) and node.name.startswith("test_"):
                 names.add(node.name)
@@ -68,13 +68,13 @@ def test_unit_checklist_cannot_remove_the_rescue_steps(tmp_path: Path) -> None:
     (unit / "10-team-brief.md").write_text(
         '---\ntitle = "Brief"\nuse = ["plan"]\nsheet = "brief"\n---\n# Only\n\n- [ ] Hello\n'
     )
-    plan = build_plan(make(), checklists=load_checklists(unit))
+    plan = plan_for(make(), checklists=load_checklists(unit))
     ids = [s.id for s in plan.steps]
     for rescue in ("intubate", "declare", "supraglottic", "wake_or_proceed", "cico"):
         assert rescue in ids
     from io import BytesIO
 
-    from airway.render_pdf import render_plan_pdf
+    from airway.render.pdf.plan import render_plan_pdf
 
     text = " ".join(p.extract_text() for p in PdfReader(BytesIO(render_plan_pdf(plan))).pages)
     assert "CICO" in text and "supraglottic size" in text
@@ -88,5 +88,5 @@ def test_sheet_footer_carries_the_rules_version(runner, tmp_path: Path) -> None:
 
 
 def test_age_under_16_warns() -> None:
-    plan = build_plan(make(patient={"age_years": 15}))
+    plan = plan_for(make(patient={"age_years": 15}))
     assert any("Age 15 years is unusual" in w for w in plan.warnings)

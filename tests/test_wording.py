@@ -9,12 +9,12 @@ from io import BytesIO
 import pytest
 from pypdf import PdfReader
 
-from airway import build_plan
-from airway.decision import DECISION_TITLE, HEADLINE, URGENCY_TEXT
-from airway.render_markdown import render_markdown
-from airway.render_pdf import render_plan_pdf
-from airway.render_text import render_text
-from airway.scoring import LEVEL_LABELS, level_heading
+from airway import plan_for
+from airway.engine.decision import DECISION_TITLE, HEADLINE, URGENCY_TEXT
+from airway.render.markdown import render_markdown
+from airway.render.pdf.plan import render_plan_pdf
+from airway.render.text import render_text
+from airway.engine.scoring import LEVEL_LABELS, level_heading
 
 from .conftest import make
 
@@ -38,7 +38,7 @@ def test_level_labels_share_no_word() -> None:
 
 
 def test_level_always_named_as_airway_level() -> None:
-    plan = build_plan(LEVEL_4)
+    plan = plan_for(LEVEL_4)
     for text in (render_text(plan), render_text(plan, compact=True), render_markdown(plan)):
         assert level_heading(4).lower() in text.lower()
         # No bare "level N" that a listener could take for another scale.
@@ -48,14 +48,14 @@ def test_level_always_named_as_airway_level() -> None:
 
 
 def test_override_rows_show_no_zero_contribution() -> None:
-    plan = build_plan(LEVEL_4)
+    plan = plan_for(LEVEL_4)
     stridor = next(line for line in render_text(plan).splitlines() if "Stridor;" in line)
     assert "0.00" not in stridor and "forces airway level 4" in stridor
     assert "+ 0.00" not in render_text(plan, compact=True)
 
 
 def test_decision_heading_same_in_every_format() -> None:
-    plan = build_plan(LEVEL_4)
+    plan = plan_for(LEVEL_4)
     # The terminal sets headings in capitals; the words are the same.
     assert DECISION_TITLE.upper() in render_text(plan)
     assert DECISION_TITLE.upper() in render_text(plan, compact=True)
@@ -64,7 +64,7 @@ def test_decision_heading_same_in_every_format() -> None:
 
 
 def test_plain_words_for_assumed_ratios_and_unchecked_figures() -> None:
-    plan = build_plan(LEVEL_4)
+    plan = plan_for(LEVEL_4)
     for text in (render_text(plan), render_markdown(plan), _pdf_text(plan)):
         assert "ratio*" not in text and "from memory of the source" not in text
     assert "assumed ratio 2" in render_text(plan)
@@ -72,7 +72,7 @@ def test_plain_words_for_assumed_ratios_and_unchecked_figures() -> None:
 
 
 def test_section_titles_say_what_they_hold() -> None:
-    text = render_text(build_plan(LEVEL_4))
+    text = render_text(plan_for(LEVEL_4))
     assert "PREPARE BECAUSE OF" not in text and "\nCHECK\n" not in text
     assert "EXTRA PREPARATION FOR HER FINDINGS" in text
     assert "WARNINGS: CHECK THESE BEFORE RELYING ON THE PLAN" in text
@@ -83,7 +83,7 @@ def test_even_decision_has_a_name_a_clinician_says() -> None:
 
 
 def test_one_term_for_saturation() -> None:
-    text = _pdf_text(build_plan(LEVEL_4))
+    text = _pdf_text(plan_for(LEVEL_4))
     assert "SaO2" not in text and "SpO2" in text
 
 

@@ -26,7 +26,9 @@ _NOT_DRAWN = frozenset("\t\n\r")
 
 
 class FontMissingError(AirwayError):
-    """The text holds characters the bundled font cannot draw."""
+    """The text holds characters the bundled font cannot draw: bad input for a PDF."""
+
+    exit_code = 2
 
 
 def font(bold: bool = False) -> str:

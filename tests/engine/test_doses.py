@@ -8,8 +8,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from airway.body import body_size
-from airway.doses import BY_NAME, compute_dose, compute_doses
+from airway.engine.body import body_size
+from airway.engine.doses import BY_NAME, compute_dose, compute_doses
 
 
 def _dose(drug: str, weight: float, height: float | None):  # type: ignore[no-untyped-def]

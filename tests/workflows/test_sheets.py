@@ -10,17 +10,17 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from airway import build_plan
-from airway.checklists import load_checklists
+from airway import plan_for
+from airway.unit.checklists import load_checklists
 from airway.cli import app
-from airway.equipment import load_catalogue
-from airway.pdf_fonts import BUNDLED
-from airway.render_sheets import BODY_PT_A4, render_sheet_pdf, sheet_styles
-from airway.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
-from airway.units import load_contacts
+from airway.unit.catalogue import load_catalogue
+from airway.render.pdf.fonts import font
+from airway.render.pdf.sheets import BODY_PT_A4, render_sheet_pdf, sheet_styles
+from airway.workflows.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
+from airway.unit.contacts import load_contacts
 
-from .conftest import make
-from .test_render_pdf import _font_sizes
+from ..conftest import make
+from ..render.test_pdf_plan import _font_sizes
 
 
 def _sheet(kind: str):  # type: ignore[no-untyped-def]
@@ -34,13 +34,13 @@ def test_weight_bands_50_to_160_in_10kg_rows() -> None:
 @pytest.mark.parametrize("kg", BAND_WEIGHTS_KG)
 def test_weight_band_rows_equal_the_patient_plan(kg: int) -> None:
     row = next(r for r in _sheet("doses").bands if r.weight_kg == kg)
-    no_height = build_plan(make(patient={"weight_kg": kg, "height_cm": None}), checklists=())
+    no_height = plan_for(make(patient={"weight_kg": kg, "height_cm": None}), checklists=())
     assert row.supraglottic_size == no_height.equipment.supraglottic_size
     sux = no_height.dose("suxamethonium")
     assert row.suxamethonium_mg == (sux.dose_mg_low, sux.dose_mg_high)
     assert row.sugammadex_mg == no_height.dose("sugammadex").dose_mg_low == 16 * kg
     for height, (lo, hi) in zip(BAND_HEIGHTS_CM, row.rocuronium_mg, strict=True):
-        p = build_plan(make(patient={"weight_kg": kg, "height_cm": height}), checklists=())
+        p = plan_for(make(patient={"weight_kg": kg, "height_cm": height}), checklists=())
         roc = p.dose("rocuronium")
         assert (lo, hi) == (roc.dose_mg_low, roc.dose_mg_high)
 
@@ -132,7 +132,7 @@ def test_every_sheet_one_page_on_every_paper_in_large_type(paper: str, landscape
     never below 12 pt body text; A4 and A3 portrait keep 14 pt and about 20 pt."""
     import io
 
-    from airway.render_sheets import MIN_SHEET_BODY_PT, SCALE
+    from airway.render.pdf.sheets import MIN_SHEET_BODY_PT, SCALE
 
     for kind in SHEETS:
         pdf = render_sheet_pdf(_sheet(kind), paper, landscape)
@@ -153,7 +153,7 @@ def test_month_grid_day_numbers_clear_of_the_rules(monkeypatch) -> None:
     number keeps its padding inside its cell, portrait and landscape, A4 and Letter."""
     from reportlab.pdfbase import pdfmetrics
 
-    import airway.render_sheets as rs
+    import airway.render.pdf.sheets as rs
 
     grids: list = []
 
@@ -177,7 +177,7 @@ def test_month_grid_day_numbers_clear_of_the_rules(monkeypatch) -> None:
             assert days == [str(d) for d in range(1, 32)]  # every day, once, in order
             for header, widths in grids:
                 for day, width in zip(header[1:], widths[1:], strict=True):
-                    text = pdfmetrics.stringWidth(day, BUNDLED.bold, size)
+                    text = pdfmetrics.stringWidth(day, font(bold=True), size)
                     assert text + 2 * rs.CELL_PADDING_PT <= width, (paper, landscape, day)
 
 
@@ -230,8 +230,8 @@ def test_sheets_reproducible_and_fonts_embedded(kind: str, tmp_path: Path) -> No
     f = tmp_path / "s.pdf"
     f.write_bytes(a)
     for page in PdfReader(f).pages:
-        for font in page["/Resources"]["/Font"].values():
-            descriptor = font.get_object()["/FontDescriptor"].get_object()
+        for face in page["/Resources"]["/Font"].values():
+            descriptor = face.get_object()["/FontDescriptor"].get_object()
             assert "/FontFile2" in descriptor
 
 
@@ -251,7 +251,7 @@ def test_dose_table_words_clear_of_the_rules_and_inside_the_page(
     the table is no wider than the frame it stands in."""
     from reportlab.pdfbase import pdfmetrics
 
-    import airway.render_sheets as rs
+    import airway.render.pdf.sheets as rs
 
     tables: list = []
 
@@ -268,7 +268,7 @@ def test_dose_table_words_clear_of_the_rules_and_inside_the_page(
     size = sheet_styles(paper)["body"].fontSize
     for r, row in enumerate(rows):
         for c, (cell, width) in enumerate(zip(row, widths, strict=True)):
-            font = BUNDLED.bold if r == 0 or c == 0 else BUNDLED.regular
+            face = font(bold=True) if r == 0 or c == 0 else font()
             for line in str(cell).split("\n"):
                 room = width - 2 * rs.MIN_CELL_PADDING_PT
-                assert pdfmetrics.stringWidth(line, font, size) <= room, (line, paper)
+                assert pdfmetrics.stringWidth(line, face, size) <= room, (line, paper)

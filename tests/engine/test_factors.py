@@ -6,7 +6,7 @@ import math
 
 import pytest
 
-from airway import (
+from airway.engine import (
     body,
     decision,
     doses,
@@ -17,7 +17,7 @@ from airway import (
     plan,
     scoring,
 )
-from airway.factors import BY_ID, CATALOGUE
+from airway.engine.factors import BY_ID, CATALOGUE
 from airway.sources import SOURCES, Evidence
 
 

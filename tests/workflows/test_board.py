@@ -8,16 +8,16 @@ from pathlib import Path
 
 from pypdf import PdfReader
 
-from airway import build_plan
-from airway.board import board_rows, load_plans
+from airway import plan_for
+from airway.workflows.board import board_rows, load_plans
 from airway.cli import app
-from airway.render_json import render_json
+from airway.render.json import render_json
 
-from .conftest import make
+from ..conftest import make
 
 
 def _save(folder: Path, name: str, **sections: object) -> None:
-    (folder / f"{name}.json").write_text(render_json(build_plan(make(**sections))))
+    (folder / f"{name}.json").write_text(render_json(plan_for(make(**sections))))
 
 
 def _ward(tmp_path: Path) -> Path:
@@ -124,14 +124,14 @@ def test_boards_of_every_size_up_to_a_busy_ward_print(tmp_path: Path) -> None:
     """A board of 13 women once failed with an internal error: the closing note met the
     foot of page 1 with room for one line, and a paragraph moved on whole could not be
     drawn. Every board from 1 to 45 women, levels and ages mixed, must print."""
-    from airway.render_board import render_board_pdf
+    from airway.render.pdf.board import render_board_pdf
 
     folder = tmp_path / "ward"
     folder.mkdir()
     for i in range(45):
         (folder / f"W{i:02d}.json").write_text(
             render_json(
-                build_plan(
+                plan_for(
                     make(
                         assessed_on=f"2026-11-{1 + i % 30:02d}",
                         patient={"weight_kg": 60 + i * 2, "height_cm": 150 + i % 30},

@@ -7,10 +7,10 @@ import math
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from airway.body import body_size
-from airway.scoring import LEVEL_THRESHOLDS, level_for_index, score
+from airway.engine.body import body_size
+from airway.engine.scoring import LEVEL_THRESHOLDS, level_for_index, score
 
-from .conftest import AIRWAY_FINDINGS, make
+from ..conftest import AIRWAY_FINDINGS, make
 
 
 def _risk(**sections: dict):  # type: ignore[no-untyped-def]
@@ -108,7 +108,7 @@ def test_present_factor_result_keeps_its_catalogue_fields() -> None:
     """A present factor's result is built by position from the prebuilt absent one: its
     catalogue fields must land in their own places. Mallampati 3: relative risk 7.58
     (Rocke 1992); BMI 95 kg at 160 cm is 37.1."""
-    from airway.factors import CATALOGUE
+    from airway.engine.factors import CATALOGUE
 
     a = make(patient={"weight_kg": 95, "height_cm": 160}, airway={"mallampati": 3})
     risk = score(a, body_size(95, 160, None))

@@ -8,11 +8,12 @@ from pathlib import Path
 import pytest
 
 from airway.cli import app
-from airway.clinic import FLAG_RULES, read_clinic_list, sort_summary, summary_row
+from airway.engine.triage import FLAGS
+from airway.workflows.clinic import read_clinic_list, sort_summary, summary_row
 from airway.fields import BY_PATH, column_reference, field_specs, parse_text
-from airway.plan import build_plan
+from airway import plan_for
 
-from .conftest import ROOT
+from ..conftest import ROOT
 
 HEADER = "id,comment,patient.weight_kg,patient.height_cm,airway.mallampati,preeclampsia.signs\n"
 
@@ -151,11 +152,11 @@ def test_summary_sorted_by_level_and_flags_follow_their_rules() -> None:
     rows = read_clinic_list(
         HEADER + "L1,,70,165,1,\nL4,,80,165,3,stridor\nL2,,80,165,3,\n", "list.csv"
     )
-    summary = [summary_row(r, build_plan(r.assessment)) for r in rows]  # type: ignore[arg-type]
+    summary = [summary_row(r, plan_for(r.assessment)) for r in rows]  # type: ignore[arg-type]
     ordered = sort_summary(summary)
     assert [s.id for s in ordered] == ["L4", "L2", "L1"]
     top = ordered[0]
-    assert top.level == 4 and set(top.flags) == set(FLAG_RULES)
+    assert top.level == 4 and set(top.flags) == {f.id for f in FLAGS}
     assert "Stridor" in top.drivers
     assert ordered[-1].flags == ()
 
@@ -166,7 +167,7 @@ def test_summary_gives_the_decision_as_the_board_does() -> None:
     With the urgency known (category 1 on the list) it is the decision itself."""
     header = HEADER.rstrip("\n") + ",context.urgency_category\n"
     rows = read_clinic_list(header + "A,,80,165,3,,\nB,,80,165,3,,1\n", "list.csv")
-    by_id = {r.id: (r, build_plan(r.assessment)) for r in rows}  # type: ignore[arg-type]
+    by_id = {r.id: (r, plan_for(r.assessment)) for r in rows}  # type: ignore[arg-type]
     clinic_row, clinic_plan = by_id["A"]
     assert clinic_plan.decision.recommendation == "decide_on_the_day"
     text = summary_row(clinic_row, clinic_plan).decision
@@ -229,7 +230,7 @@ def test_example_clinic_list_has_200_rows_six_marked_bad() -> None:
     assert len(rows) == 200
     bad = [r for r in rows if r.assessment is None]
     assert len(bad) == 6
-    levels = {build_plan(r.assessment).risk.level for r in rows[:60] if r.assessment}
+    levels = {plan_for(r.assessment).risk.level for r in rows[:60] if r.assessment}
     assert levels == {1, 2, 3, 4}
 
 

@@ -13,7 +13,7 @@ import tomllib
 from pathlib import Path
 
 from airway.cli import app
-from airway.guided import GROUPS, assessment_toml, guided_entry
+from airway.workflows.guided import GROUPS, assessment_toml, guided_entry
 
 ORDER = [path for _heading, paths in GROUPS for path in paths]
 ANSWERS = {

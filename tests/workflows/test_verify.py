@@ -12,7 +12,7 @@ from typer.testing import Result
 
 from airway.cli import app
 
-from .conftest import EXAMPLES
+from ..conftest import EXAMPLES
 
 
 @pytest.fixture

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import gc
 import json
 import subprocess
 import sys
@@ -13,7 +12,7 @@ from typer.testing import CliRunner
 
 from airway.cli import app
 
-from .conftest import EXAMPLES
+from ..conftest import EXAMPLES
 
 BAD = {
     "unknown_key": ("[patient]\nweight_kg = 80\n[airway]\nmalampati = 2\n", "airway.malampati"),
@@ -252,7 +251,7 @@ def test_plan_needs_file_or_demo(runner) -> None:
 
 def test_start_up_does_not_import_reportlab() -> None:
     code = (
-        "import sys, airway.cli, airway.plan, airway.render_text; "
+        "import sys, airway.cli, airway.engine.plan, airway.render.text; "
         "sys.exit('reportlab' in sys.modules)"
     )
     assert subprocess.run([sys.executable, "-c", code]).returncode == 0
@@ -312,27 +311,6 @@ def test_quick_help_groups_options_by_examination() -> None:
     ]
 
 
-@pytest.mark.parametrize("name", [c for c in COMMANDS if c])
-def test_one_command_app_reads_like_the_whole_app(runner, name: str) -> None:
-    """Start-up builds only the command asked for; its help and its errors read the same."""
-    from airway.cli import _app_for
-
-    one = _app_for([name, "--help"])
-    assert one is not app and len(one.registered_commands) == 1
-    for args in ([name, "--help"], [name, "--no-such-option"]):
-        whole = runner.invoke(app, args, env={"COLUMNS": "80"}, terminal_width=80)
-        alone = runner.invoke(one, args, env={"COLUMNS": "80"}, terminal_width=80)
-        assert (alone.exit_code, alone.output) == (whole.exit_code, whole.output)
-    assert len(app.registered_commands) == len(COMMANDS) - 1  # the whole app untouched
-
-
-def test_whole_app_for_anything_but_a_command_name() -> None:
-    from airway.cli import _app_for
-
-    for args in ([], ["--help"], ["--version"], ["quik"], ["-h", "quick"]):
-        assert _app_for(args) is app
-
-
 def _broken(*_args: object, **_kwargs: object) -> None:
     raise RuntimeError("Ann Example, record A-1")  # as if a fault echoed what was typed
 
@@ -342,28 +320,25 @@ def test_a_fault_in_airway_gives_one_plain_message_and_exit_1(monkeypatch, capsy
     what was typed in the message, exit 1; AIRWAY_TRACEBACK=1 lets the exception through."""
     from airway import cli
 
-    monkeypatch.setattr("airway.plan.build_plan", _broken)
+    monkeypatch.setattr("airway.workflows.planning.build_plan", _broken)
     monkeypatch.setattr("sys.argv", ["airway", "quick", "--weight-kg", "90"])
     monkeypatch.delenv("AIRWAY_TRACEBACK", raising=False)
-    try:
-        with pytest.raises(SystemExit) as stop:
-            cli.main()
-        assert stop.value.code == 1
-        err = capsys.readouterr().err
-        assert "internal error (RuntimeError)" in err and "Traceback" not in err
-        assert "Ann Example" not in err and "A-1" not in err
-        monkeypatch.setenv("AIRWAY_TRACEBACK", "1")
-        with pytest.raises(RuntimeError):
-            cli.main()
-    finally:
-        gc.enable()  # main() turns the collector off for its one-shot process
+    with pytest.raises(SystemExit) as stop:
+        cli.main()
+    assert stop.value.code == 1
+    err = capsys.readouterr().err
+    assert "internal error (RuntimeError)" in err and "Traceback" not in err
+    assert "Ann Example" not in err and "A-1" not in err
+    monkeypatch.setenv("AIRWAY_TRACEBACK", "1")
+    with pytest.raises(RuntimeError):
+        cli.main()
 
 
 def test_an_os_error_without_a_file_name_reads_cleanly(capsys) -> None:
     """A closed pipe (airway plan FILE | head) has no file name: no stray colon."""
     import typer
 
-    from airway.cli import _errors
+    from airway.cli.app import errors as _errors
 
     with pytest.raises(typer.Exit) as stop, _errors():
         raise BrokenPipeError(32, "Broken pipe")

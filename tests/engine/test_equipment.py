@@ -10,11 +10,12 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from airway.assessment import OedemaSign
-from airway.body import body_size
-from airway.equipment import choose_equipment, choose_tubes, load_catalogue
+from airway.engine.body import body_size
+from airway.engine.equipment import choose_equipment, choose_tubes
+from airway.unit.catalogue import load_catalogue
 from airway.errors import CatalogueError
 
-from .conftest import make
+from ..conftest import make
 
 CATALOGUE = load_catalogue()
 
@@ -59,7 +60,7 @@ def test_adding_preeclampsia_or_oedema_never_enlarges_first_tube(status, signs, 
 
 
 def test_only_stocked_sizes_are_suggested(tmp_path: Path) -> None:
-    text = Path(__file__).parent.parent.joinpath("airway/data/equipment.toml").read_text()
+    text = Path(__file__).resolve().parents[2].joinpath("airway/data/equipment.toml").read_text()
     text = text.replace("[5.0, 5.5, 6.0, 6.5, 7.0, 7.5]", "[6.0, 7.5]")
     custom = tmp_path / "unit.toml"
     custom.write_text(text)
@@ -70,7 +71,7 @@ def test_only_stocked_sizes_are_suggested(tmp_path: Path) -> None:
 
 
 def test_catalogue_without_front_of_neck_size_is_refused(tmp_path: Path) -> None:
-    text = Path(__file__).parent.parent.joinpath("airway/data/equipment.toml").read_text()
+    text = Path(__file__).resolve().parents[2].joinpath("airway/data/equipment.toml").read_text()
     bad = tmp_path / "bad.toml"
     bad.write_text(text.replace("[5.0, 5.5, 6.0, 6.5, 7.0, 7.5]", "[7.0, 7.5]"))
     with pytest.raises(CatalogueError, match="front_of_neck_tube_mm"):
@@ -78,7 +79,7 @@ def test_catalogue_without_front_of_neck_size_is_refused(tmp_path: Path) -> None
 
 
 def test_catalogue_text_longer_than_two_printed_lines_is_refused(tmp_path: Path) -> None:
-    text = Path(__file__).parent.parent.joinpath("airway/data/equipment.toml").read_text()
+    text = Path(__file__).resolve().parents[2].joinpath("airway/data/equipment.toml").read_text()
     bad = tmp_path / "bad.toml"
     bad.write_text(text.replace('bougie = "', 'bougie = "' + "very long " * 20, 1))
     with pytest.raises(CatalogueError, match="bougie"):
@@ -92,58 +93,3 @@ def test_large_breasts_open_a_short_handle() -> None:
     eq = choose_equipment(make(), body_size(80, 165), 1, CATALOGUE)
     assert not any(i.name == "Short-handled laryngoscope" for i in eq.items)
 
-
-def test_shipped_parsed_catalogue_is_current() -> None:
-    """The parsed copy read on the emergency path is the shipped TOML, parsed now
-    (regenerate with `python -m airway.equipment`)."""
-    import json
-    import tomllib
-    from importlib import resources
-
-    from airway import equipment
-
-    on_disk = resources.files("airway").joinpath(equipment.SHIPPED_PARSED).read_text("utf-8")
-    assert on_disk == equipment.shipped_parsed_text()
-    toml = resources.files("airway").joinpath(equipment.SHIPPED_TOML).read_text("utf-8")
-    assert json.loads(on_disk)["catalogue"] == tomllib.loads(toml)
-
-
-def test_stale_parsed_catalogue_is_ignored(monkeypatch) -> None:
-    """An edited shipped TOML is read as edited, whatever the parsed copy says."""
-    from airway import equipment
-
-    edited = equipment._shipped_toml().replace("7.0", "7.5", 1)
-    assert edited != equipment._shipped_toml()
-    monkeypatch.setattr(equipment, "_shipped_toml", lambda: edited)
-    import tomllib
-
-    expected = equipment.Catalogue.model_validate(tomllib.loads(edited))
-    assert equipment.load_catalogue() == expected
-
-
-def test_emergency_path_does_not_import_the_toml_parser() -> None:
-    import subprocess
-    import sys
-
-    code = (
-        "import sys; sys.argv = ['airway', 'quick', '--weight-kg', '90']\n"
-        "from airway import cli\n"
-        "try:\n    cli.main()\nexcept SystemExit:\n    pass\n"
-        "print('TOML', 'tomllib' in sys.modules, file=sys.stderr)"
-    )
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=False)
-    assert "TOML False" in out.stderr
-
-
-def test_shipped_catalogue_built_unchecked_equals_the_checked_one() -> None:
-    """On the emergency path the shipped catalogue is built from its parsed copy without
-    validation (start-up): it must be what validation makes of it, value and type."""
-    from airway import equipment
-
-    data, checked = equipment._shipped_data()
-    assert checked  # the parsed copy is current (test above)
-    fast = equipment.load_catalogue()
-    slow = equipment.Catalogue.model_validate(data)
-    assert fast == slow
-    assert fast.model_dump_json() == slow.model_dump_json()
-    assert repr(fast) == repr(slow)  # 5.0, not 5: the types too

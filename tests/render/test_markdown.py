@@ -6,10 +6,10 @@ from hypothesis import example, given, settings
 from hypothesis import strategies as st
 from markdown_it import MarkdownIt
 
-from airway import build_plan
-from airway.render_markdown import render_markdown
+from airway import plan_for
+from airway.render.markdown import render_markdown
 
-from .conftest import make
+from ..conftest import make
 
 MD = MarkdownIt("commonmark").enable(["table", "strikethrough"])
 HOSTILE = "Clinic | 4 *bold* _it_ `code` ~~gone~~ [link](http://x) <b>x</b> &amp; \\*"
@@ -26,7 +26,7 @@ def _shown(children: list[object]) -> str:
 
 
 def test_a_hostile_label_is_shown_as_typed_not_as_markup() -> None:
-    text = render_markdown(build_plan(make(label=HOSTILE)))
+    text = render_markdown(plan_for(make(label=HOSTILE)))
     children = _first_line_inline(text)
     kinds = {c.type for c in children}  # type: ignore[attr-defined]
     assert kinds <= {"text"}, kinds  # no emphasis, link, code, strike or HTML
@@ -43,5 +43,5 @@ def test_any_printable_label_round_trips(label: str) -> None:
     label = label.strip()
     if not label:
         return
-    text = render_markdown(build_plan(make(label=label)))
+    text = render_markdown(plan_for(make(label=label)))
     assert _shown(_first_line_inline(text)) == f"Airway plan: {label}"

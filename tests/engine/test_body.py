@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from airway.body import (
+from airway.engine.body import (
     CM_PER_INCH,
     adjusted_weight,
     bmi,

@@ -5,12 +5,12 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from airway import build_plan
+from airway import plan_for
 from airway.cli import app
-from airway.compare import compare_plans
-from airway.plan_model import plain
+from airway.engine.compare import compare_plans
+from airway.engine.plan_model import plain
 
-from .conftest import make
+from ..conftest import make
 
 CLINIC = make(
     assessed_on="2026-11-12",
@@ -30,7 +30,7 @@ LABOUR = make(
 
 
 def test_more_dangerous_changes_come_first() -> None:
-    c = compare_plans(build_plan(CLINIC), build_plan(LABOUR))
+    c = compare_plans(plan_for(CLINIC), plan_for(LABOUR))
     assert c.more_dangerous and c.plan_changed
     assert c.changes[0].kind == "level" and c.changes[0].danger > 0
     dangers = [ch.danger for ch in c.changes]
@@ -48,20 +48,20 @@ def test_a_factor_not_assessed_before_is_not_called_none() -> None:
     unassessed = make(patient={"weight_kg": 92, "height_cm": 163})
     class_1 = make(patient={"weight_kg": 92, "height_cm": 163}, airway={"mallampati": 1})
     class_4 = make(patient={"weight_kg": 92, "height_cm": 163}, airway={"mallampati": 4})
-    later = build_plan(class_4)
-    factors = [ch.what for ch in compare_plans(build_plan(unassessed), later).changes]
+    later = plan_for(class_4)
+    factors = [ch.what for ch in compare_plans(plan_for(unassessed), later).changes]
     assert "Mallampati class 4 (was not assessed)" in factors
-    factors = [ch.what for ch in compare_plans(build_plan(class_1), later).changes]
+    factors = [ch.what for ch in compare_plans(plan_for(class_1), later).changes]
     assert "Mallampati class 4 (was none)" in factors
 
 
 def test_same_assessment_nothing_changed() -> None:
-    c = compare_plans(build_plan(CLINIC), build_plan(CLINIC))
+    c = compare_plans(plan_for(CLINIC), plan_for(CLINIC))
     assert c.changes == () and not c.more_dangerous and not c.plan_changed
 
 
 def test_improvement_is_not_marked_dangerous() -> None:
-    c = compare_plans(build_plan(LABOUR), build_plan(CLINIC))
+    c = compare_plans(plan_for(LABOUR), plan_for(CLINIC))
     assert not c.more_dangerous and c.plan_changed
     level = next(ch for ch in c.changes if ch.kind == "level")
     assert level.danger < 0
@@ -70,7 +70,7 @@ def test_improvement_is_not_marked_dangerous() -> None:
 def test_different_record_numbers_warn_of_two_women() -> None:
     a = make(identity={"record_number": "A-1"})
     b = make(identity={"record_number": "B-2"})
-    c = compare_plans(build_plan(a), build_plan(b))
+    c = compare_plans(plan_for(a), plan_for(b))
     assert c.changes[0].kind == "identity" and "two different women" in c.changes[0].what
     text = json.dumps(plain(c))
     assert "A-1" not in text and "B-2" not in text

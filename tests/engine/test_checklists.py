@@ -6,19 +6,13 @@ from pathlib import Path
 
 import pytest
 
-from airway import build_plan
-from airway.checklists import (
-    CONDITIONS,
-    VALUES,
-    for_plan,
-    generic,
-    load_checklists,
-    parse_checklist,
-)
+from airway import plan_for
+from airway.engine.checklists import CONDITIONS, VALUES, for_plan, generic
+from airway.unit.checklists import load_checklists, parse_checklist
 from airway.cli import app
 from airway.errors import ChecklistError
 
-from .conftest import make
+from ..conftest import make
 
 HEAD = '---\ntitle = "T"\nuse = ["plan"]\nsheet = "brief"\n---\n\n'
 
@@ -28,7 +22,7 @@ def _parse(body: str):  # type: ignore[no-untyped-def]
 
 
 def _render(body: str, **sections: object) -> list[str]:
-    plan = build_plan(make(**sections), checklists=())
+    plan = plan_for(make(**sections), checklists=())
     return [i.text for s in for_plan(_parse(body), plan).sections for i in s.items]
 
 
@@ -47,7 +41,7 @@ def test_conditions_select_items() -> None:
 
 
 def test_values_are_the_plans_values() -> None:
-    plan = build_plan(make(preeclampsia={"signs": ["voice_change"]}), checklists=())
+    plan = plan_for(make(preeclampsia={"signs": ["voice_change"]}), checklists=())
     c = _parse("# S\n\n- [ ] tube {{tube_first}} mm, sugammadex {{ sugammadex_mg }} mg\n")
     (text,) = [i.text for s in for_plan(c, plan).sections for i in s.items]
     t = plan.equipment.tracheal_tube_mm.first
@@ -55,7 +49,7 @@ def test_values_are_the_plans_values() -> None:
 
 
 def test_every_condition_and_value_evaluates_on_examples() -> None:
-    plan = build_plan(make(), checklists=())
+    plan = plan_for(make(), checklists=())
     for _desc, fn in CONDITIONS.values():
         assert isinstance(fn(plan), bool)
     for _desc, value in VALUES.values():
@@ -64,7 +58,7 @@ def test_every_condition_and_value_evaluates_on_examples() -> None:
 
 def test_section_without_items_is_dropped_when_conditions_remove_all() -> None:
     c = _parse("# A\n\n- [ ] x {when preeclampsia}\n\n# B\n\n- [ ] y\n")
-    plan = build_plan(make(), checklists=())
+    plan = plan_for(make(), checklists=())
     assert [s.title for s in for_plan(c, plan).sections] == ["B"]
 
 
@@ -109,7 +103,7 @@ def test_front_matter_errors(text: str, message: str) -> None:
 
 def test_hostile_item_text_is_kept_verbatim() -> None:
     c = _parse("# S\n\n- [ ] <b>O'Neil & Co</b> µg ≥ 3\n")
-    plan = build_plan(make(), checklists=())
+    plan = plan_for(make(), checklists=())
     assert for_plan(c, plan).sections[0].items[0].text == "<b>O'Neil & Co</b> µg ≥ 3"
 
 
@@ -144,10 +138,10 @@ def test_unit_values_fill_sheets_and_plans_from_the_guidance_constants() -> None
 def test_markdown_plan_and_pdf_share_checklist_content(tmp_path: Path) -> None:
     from pypdf import PdfReader
 
-    from airway.render_markdown import render_markdown
-    from airway.render_pdf import render_plan_pdf
+    from airway.render.markdown import render_markdown
+    from airway.render.pdf.plan import render_plan_pdf
 
-    plan = build_plan(make(airway={"large_breasts": True}))
+    plan = plan_for(make(airway={"large_breasts": True}))
     md = render_markdown(plan)
     f = tmp_path / "p.pdf"
     f.write_bytes(render_plan_pdf(plan))
@@ -160,38 +154,14 @@ def test_markdown_plan_and_pdf_share_checklist_content(tmp_path: Path) -> None:
 
 
 def test_example_unit_folder_parses_and_applies() -> None:
-    from airway.units import load_contacts, load_unit_paths
+    from airway.unit.config import load_unit_paths
+    from airway.unit.contacts import load_contacts
 
-    root = Path(__file__).resolve().parent.parent / "checklists" / "example-unit"
+    root = Path(__file__).resolve().parents[2] / "checklists" / "example-unit"
     paths = load_unit_paths(root / "airway.toml")
     lists = {c.meta.sheet: c for c in load_checklists(paths.checklists)}
     assert "example unit" in lists["after"].meta.title
     assert load_contacts(paths.contacts)[0].number == "bleep 0000"
-
-
-def test_shipped_parse_cache_is_fresh() -> None:
-    """After editing a shipped checklist, run `python -m airway.checklists`."""
-    from importlib import resources
-
-    from airway.checklists import CACHE_FILE, shipped_cache_text
-
-    shipped = resources.files("airway").joinpath("data/checklists", CACHE_FILE)
-    assert shipped.read_text("utf-8") == shipped_cache_text()
-
-
-def test_cache_entry_used_only_when_its_digest_matches(monkeypatch) -> None:
-    from airway import checklists
-
-    text = "---\ntitle = 'T'\nuse = ['plan']\nsheet = 'brief'\n---\n\n# S\n\n- [ ] real item\n"
-    cached = checklists.parse_checklist(text.replace("real item", "cached item"), "x.md")
-    entry = {"sha256": checklists._digest(text), "checklist": cached.model_dump()}
-    stale = {"sha256": "0" * 64, "checklist": cached.model_dump()}
-    for cache, expected in (({"x.md": entry}, "cached item"), ({"x.md": stale}, "real item")):
-        checklists._parsed.cache_clear()
-        monkeypatch.setattr(checklists, "_shipped_cache", lambda c=cache: c)
-        got = checklists._parsed(text, "x.md")
-        assert got.sections[0].items[0].text == expected
-    checklists._parsed.cache_clear()
 
 
 def test_unit_checklist_not_utf8_exit_2(runner, tmp_path) -> None:
@@ -200,25 +170,7 @@ def test_unit_checklist_not_utf8_exit_2(runner, tmp_path) -> None:
     assert r.exit_code == 2 and "not UTF-8" in r.stderr and "Traceback" not in r.output
 
 
-def test_shipped_checklists_built_unchecked_equal_the_parsed_ones() -> None:
-    """The shipped checklists are built from the parse cache without validation: each
-    must be what parsing its file gives, value and type."""
-    from airway import checklists
-
-    checklists._parsed.cache_clear()
-    cache = checklists._shipped_cache()
-    shipped = checklists.load_checklists()
-    assert len(shipped) == len(cache) >= 4
-    for name, text in checklists._shipped_texts():
-        label, body = text
-        fast = checklists._cached_checklist(cache[label]["checklist"])
-        slow = checklists.parse_checklist(body, label)
-        assert fast == slow and repr(fast) == repr(slow), name
-        assert fast.model_dump_json() == slow.model_dump_json()
-        assert checklists.Checklist.model_validate(cache[label]["checklist"]) == fast
-
-
 def test_no_unit_config_gives_the_default_paths() -> None:
-    from airway.units import UnitPaths
+    from airway.unit.config import UnitPaths
 
     assert UnitPaths.model_construct() == UnitPaths()

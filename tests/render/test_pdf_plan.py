@@ -13,13 +13,14 @@ from hypothesis import strategies as st
 from pypdf import PdfReader
 from typer.testing import CliRunner
 
-from airway import build_plan, read_assessment
+from airway import plan_for
+from airway import read_assessment
 from airway.cli import app
-from airway.decision import SHORT
-from airway.render_json import render_json
-from airway.render_pdf import render_plan_pdf
+from airway.engine.decision import SHORT
+from airway.render.json import render_json
+from airway.render.pdf.plan import render_plan_pdf
 
-from .conftest import EXAMPLES, make
+from ..conftest import EXAMPLES, make
 
 MM = 72 / 25.4
 
@@ -36,7 +37,7 @@ def _span(low: float, high: float) -> str:
 
 @pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
 def test_pdf_carries_the_json_plan_values(path: Path, tmp_path: Path) -> None:
-    plan = build_plan(read_assessment(path))
+    plan = plan_for(read_assessment(path))
     data = json.loads(render_json(plan))
     text = _text(render_plan_pdf(plan), tmp_path)
     t = data["equipment"]["tracheal_tube_mm"]
@@ -61,7 +62,7 @@ def test_pdf_carries_the_json_plan_values(path: Path, tmp_path: Path) -> None:
 def test_page_count_and_size(
     path: Path, paper: str, size: tuple[float, float], tmp_path: Path
 ) -> None:
-    plan = build_plan(read_assessment(path))
+    plan = plan_for(read_assessment(path))
     f = tmp_path / "p.pdf"
     f.write_bytes(render_plan_pdf(plan, paper))
     reader = PdfReader(f)
@@ -73,7 +74,7 @@ def test_page_count_and_size(
 
 def test_every_font_embedded(tmp_path: Path) -> None:
     f = tmp_path / "p.pdf"
-    f.write_bytes(render_plan_pdf(build_plan(read_assessment(EXAMPLES[0]))))
+    f.write_bytes(render_plan_pdf(plan_for(read_assessment(EXAMPLES[0]))))
     fonts = []
     for page in PdfReader(f).pages:
         for font in page["/Resources"]["/Font"].values():
@@ -82,22 +83,22 @@ def test_every_font_embedded(tmp_path: Path) -> None:
             descriptor = font.get("/FontDescriptor")
             assert descriptor is not None and "/FontFile2" in descriptor.get_object(), font
     # Set in the bundled cut of DejaVu Sans: this plan holds no character outside it.
-    assert fonts and all("AirwaySans" in str(name) for name in fonts)
+    assert fonts and all("DejaVuSans" in str(name) for name in fonts)
 
 
 def test_byte_identical_across_runs() -> None:
-    plan = build_plan(read_assessment(EXAMPLES[0]))
-    assert render_plan_pdf(plan) == render_plan_pdf(build_plan(read_assessment(EXAMPLES[0])))
+    plan = plan_for(read_assessment(EXAMPLES[0]))
+    assert render_plan_pdf(plan) == render_plan_pdf(plan_for(read_assessment(EXAMPLES[0])))
 
 
 def test_hostile_and_accented_text_prints_as_written(tmp_path: Path) -> None:
     label = "<b>O'Neil & Co</b> Zoë Ångström µg ≥ 3 – ok"
-    plan = build_plan(make(label=label))
+    plan = plan_for(make(label=label))
     assert label in _text(render_plan_pdf(plan), tmp_path)
 
 
 def test_missing_height_pdf_says_what_was_not_scaled(tmp_path: Path) -> None:
-    text = _text(render_plan_pdf(build_plan(make(patient={"height_cm": None}))), tmp_path)
+    text = _text(render_plan_pdf(plan_for(make(patient={"height_cm": None}))), tmp_path)
     assert "Not scaled to lean or ideal weight" in text
 
 
@@ -116,7 +117,7 @@ def test_cli_pdf_force_and_no_partial_files(runner, tmp_path: Path) -> None:
 @pytest.mark.skipif(shutil.which("pdftoppm") is None, reason="poppler-utils not installed")
 def test_rendered_page_not_blank(tmp_path: Path) -> None:
     pdf = tmp_path / "p.pdf"
-    pdf.write_bytes(render_plan_pdf(build_plan(read_assessment(EXAMPLES[0]))))
+    pdf.write_bytes(render_plan_pdf(plan_for(read_assessment(EXAMPLES[0]))))
     subprocess.run(
         ["pdftoppm", "-r", "30", "-gray", "-f", "1", "-l", "1", str(pdf), str(tmp_path / "pg")],
         check=True,
@@ -128,9 +129,9 @@ def test_rendered_page_not_blank(tmp_path: Path) -> None:
 
 def test_identifiers_print_when_given_blank_lines_otherwise(tmp_path: Path) -> None:
     given = make(identity={"name": "Ana Ñúñez-O'Brien", "record_number": "X-123"})
-    text = _text(render_plan_pdf(build_plan(given)), tmp_path)
+    text = _text(render_plan_pdf(plan_for(given)), tmp_path)
     assert "Ana Ñúñez-O'Brien" in text and "X-123" in text
-    blank = _text(render_plan_pdf(build_plan(make())), tmp_path)
+    blank = _text(render_plan_pdf(plan_for(make())), tmp_path)
     assert "Name: ____" in blank and "Record number: ____" in blank
 
 
@@ -141,9 +142,9 @@ def test_hostile_checklist_item_prints_verbatim(tmp_path: Path) -> None:
         '---\ntitle = "Brief & <i>co</i>"\nuse = ["plan"]\nsheet = "brief"\n---\n'
         "# Roles\n\n- [ ] Call <b>Dr O'Neil & Co</b> on 1234\n"
     )
-    from airway.checklists import load_checklists
+    from airway.unit.checklists import load_checklists
 
-    plan = build_plan(make(), checklists=load_checklists(unit))
+    plan = plan_for(make(), checklists=load_checklists(unit))
     text = _text(render_plan_pdf(plan), tmp_path)
     assert "Call <b>Dr O'Neil & Co</b> on 1234" in text and "Brief & <i>co</i>" in text
 
@@ -164,7 +165,7 @@ def _font_sizes(pdf: bytes) -> set[float]:
 @pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
 @pytest.mark.parametrize("paper", ["A4", "letter"])
 def test_no_text_under_8_points(path: Path, paper: str) -> None:
-    sizes = _font_sizes(render_plan_pdf(build_plan(read_assessment(path)), paper))
+    sizes = _font_sizes(render_plan_pdf(plan_for(read_assessment(path)), paper))
     assert sizes and min(sizes) >= 8.0, sorted(sizes)
 
 
@@ -204,7 +205,7 @@ def test_first_seconds_numbers_in_one_block_at_the_top(path: Path, tmp_path: Pat
     """Level, tubes, supraglottic size, front-of-neck tube, doses in mg and mL (with
     sugammadex), minutes to SpO2 90% and the pre-made decision all come before the
     first section of page 1 (the factor table)."""
-    plan = build_plan(read_assessment(path))
+    plan = plan_for(read_assessment(path))
     text = _text(render_plan_pdf(plan), tmp_path)
     head = text[: text.index("Why airway level")]
     for value in _first_seconds_values(plan):
@@ -236,7 +237,7 @@ def test_levels_1_and_2_on_one_a4_page_even_with_much_to_say() -> None:
 
     checked = 0
     for assessment in _level_cases():
-        plan = build_plan(assessment)
+        plan = plan_for(assessment)
         pages = len(PdfReader(io.BytesIO(render_plan_pdf(plan))).pages)
         if plan.risk.level <= 2:
             checked += 1
@@ -250,7 +251,7 @@ def test_never_more_than_two_pages_on_letter() -> None:
     import io
 
     for assessment in _level_cases():
-        plan = build_plan(assessment)
+        plan = plan_for(assessment)
         assert len(PdfReader(io.BytesIO(render_plan_pdf(plan, "letter"))).pages) <= 2
 
 
@@ -301,38 +302,11 @@ def test_every_finding_at_once_still_two_pages_with_the_actions_on_page_2(paper)
     it follow the actions on page 2 instead of spilling onto a page of their own."""
     import io
 
-    plan = build_plan(make(**EVERY_FINDING))
+    plan = plan_for(make(**EVERY_FINDING))
     reader = PdfReader(io.BytesIO(render_plan_pdf(plan, paper)))
     assert len(reader.pages) == 2
     page_2 = " ".join(reader.pages[1].extract_text().split())
     assert page_2.startswith("If it goes wrong: the sequence")
-
-
-def test_line_breaks_reused_only_where_they_change_nothing(monkeypatch) -> None:
-    """Wrapping each paragraph once per width prints the same bytes as wrapping every time.
-
-    Covers both layouts, two pages, US Letter and a long hostile name that splits.
-    """
-    from reportlab.platypus import Paragraph as Plain
-
-    from airway import render_pdf
-
-    crowded = make(
-        identity={"name": "Ann " + "Verylongsurname-" * 4},
-        patient={"weight_kg": 140, "height_cm": 152, "in_labour": True},
-        airway={"mallampati": 4, "large_breasts": True, "short_neck": True},
-        preeclampsia={"status": "with_severe_features", "signs": ["stridor", "voice_change"]},
-        context={"urgency_category": 1},
-    )
-    cases = [(read_assessment(p), "A4") for p in EXAMPLES] + [
-        (crowded, "A4"),
-        (crowded, "letter"),
-        (make(), "letter"),
-    ]
-    cached = [render_plan_pdf(build_plan(a), paper) for a, paper in cases]
-    monkeypatch.setattr(render_pdf.Paragraph, "wrap", Plain.wrap)
-    plain = [render_plan_pdf(build_plan(a), paper) for a, paper in cases]
-    assert cached == plain
 
 
 @pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
@@ -341,7 +315,7 @@ def test_every_step_of_the_sequence_is_printed_or_said_where_it_is(
 ) -> None:
     """The printed sequence leaves out the steps the team brief and the after-event list
     stand in for; a sequence opening at step 8 must say where steps 1-7 went."""
-    plan = build_plan(read_assessment(path))
+    plan = plan_for(read_assessment(path))
     text = _text(render_plan_pdf(plan), tmp_path)
     sequence = text.split("the sequence, with her values", 1)[1]
     for n, step in enumerate(plan.steps, 1):
@@ -362,25 +336,27 @@ def test_no_plain_table_text_is_wider_than_its_column(monkeypatch, tmp_path: Pat
     column inside the padding."""
     import csv
 
-    import airway.render_board
-    import airway.render_pdf as rp
-    import airway.render_summary
+    import airway.render.pdf.board
+    import airway.render.pdf.kit as rp
+    import airway.render.pdf.plan_parts
+    import airway.render.pdf.summary
 
     grids: list[tuple] = []
-    plain_grid = rp._grid
+    plain_grid = rp.grid
 
     def recorded(rows, widths, header=True, size=rp.MIN_FONT_PT):  # type: ignore[no-untyped-def]
         table = plain_grid(rows, widths, header, size)
         grids.append((rows, table._colWidths, header, size))
         return table
 
-    for module in (rp, airway.render_board, airway.render_summary):
-        monkeypatch.setattr(module, "_grid", recorded)
+    pdf = airway.render.pdf
+    for module in (pdf.plan_parts, pdf.board, pdf.summary):
+        monkeypatch.setattr(module, "grid", recorded)
     cases = list(_level_cases()) + [read_assessment(p) for p in EXAMPLES]
     for assessment in cases:
         for paper in ("A4", "letter"):
-            render_plan_pdf(build_plan(assessment), paper)
-    clinic = Path(__file__).parent.parent / "examples" / "clinic-list.csv"
+            render_plan_pdf(plan_for(assessment), paper)
+    clinic = Path(__file__).resolve().parents[2] / "examples" / "clinic-list.csv"
     with clinic.open(encoding="utf-8") as f:
         rows = list(csv.reader(f))[:41]  # 40 women, the bad rows among them
     short = tmp_path / "list.csv"
@@ -401,25 +377,6 @@ def test_no_plain_table_text_is_wider_than_its_column(monkeypatch, tmp_path: Pat
                     wide = rp._text_width(cell, header and r_ == 0, size)
                     assert wide <= width - 2 * rp.CELL_PADDING_PT, (cell, size)
     assert checked > 1000 and {9} <= {g[3] for g in grids}  # the board's 9 pt was seen
-
-
-def test_paragraph_moved_on_whole_still_draws_in_the_next_frame() -> None:
-    """reportlab drops a paragraph's line breaks when a frame has room for one line only
-    (no orphans) and moves it on whole; the once-per-width wrap must break the lines
-    again then, or drawing it fails and no PDF is written (seen on a ward board)."""
-    import io
-
-    from reportlab.pdfgen.canvas import Canvas
-
-    from airway import render_pdf
-
-    render_pdf.use_fonts()
-    style = render_pdf._styles()["body"]
-    para = render_pdf.Paragraph("enough words to fill several lines " * 8, style)
-    para.wrap(200, 1000)
-    assert para.split(200, style.leading * 1.5) == []  # room for one line: moved on whole
-    para.wrap(200, 1000)  # the next frame, the same width
-    para.drawOn(Canvas(io.BytesIO()), 0, 0)
 
 
 # Level 2 plans that spilled a few lines onto a second A4 page even when dense (found by
@@ -459,7 +416,7 @@ def test_a_level_2_plan_that_spilled_when_dense_is_set_tighter_on_one_page(data)
 
     from airway.loading import assessment_from_mapping
 
-    plan = build_plan(assessment_from_mapping(data))
+    plan = plan_for(assessment_from_mapping(data))
     assert plan.risk.level == 2
     pdf = render_plan_pdf(plan)
     assert len(PdfReader(io.BytesIO(pdf)).pages) == 1
@@ -471,9 +428,9 @@ def test_every_one_page_plan_is_set_alike(tmp_path: Path) -> None:
     apnoea scenarios as a table without the curve), even a plan short enough for two
     columns: each part is in the same place on every such plan. This woman's plan once
     fitted two columns with the curve. Two-page plans (levels 3 and 4) keep the curve."""
-    from airway.render_pdf import CURVE_TITLE
+    from airway.render.pdf.plan_parts import CURVE_TITLE
 
-    short = build_plan(
+    short = plan_for(
         make(
             patient={"weight_kg": 50.3, "height_cm": 170},
             context={"urgency_category": 2, "end_tidal_o2": 0.64},
@@ -482,7 +439,7 @@ def test_every_one_page_plan_is_set_alike(tmp_path: Path) -> None:
     assert short.risk.level == 1
     text = _text(render_plan_pdf(short), tmp_path)
     assert "Minutes to SpO2 of" in text and CURVE_TITLE not in text
-    high = build_plan(read_assessment(next(p for p in EXAMPLES if p.name.startswith("severe"))))
+    high = plan_for(read_assessment(next(p for p in EXAMPLES if p.name.startswith("severe"))))
     assert high.risk.level >= 3
     assert CURVE_TITLE in _text(render_plan_pdf(high), tmp_path)
 
@@ -494,12 +451,14 @@ def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
     made the plan impossible to print)."""
     import re
 
-    from airway.checklists import ITEM_MAX_CHARS, TITLE_MAX_CHARS, load_checklists
-    from airway.equipment import CATALOGUE_TEXT_MAX, load_catalogue
-    from airway.render_sheets import render_sheet_pdf
-    from airway.sheets import SHEETS, build_sheet
+    from airway.checklist import ITEM_MAX_CHARS, TITLE_MAX_CHARS
+    from airway.unit.checklists import load_checklists
+    from airway.catalogue import CATALOGUE_TEXT_MAX
+    from airway.unit.catalogue import load_catalogue
+    from airway.render.pdf.sheets import render_sheet_pdf
+    from airway.workflows.sheets import SHEETS, build_sheet
 
-    root = Path(__file__).parent.parent / "airway" / "data"
+    root = Path(__file__).resolve().parents[2] / "airway" / "data"
     unit = tmp_path / "unit"
     unit.mkdir()
     for source in (root / "checklists").glob("*.md"):
@@ -529,61 +488,8 @@ def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
     lists, cat = load_checklists(unit), load_catalogue(catalogue)
     assert max(len(i.text) for c in lists for s in c.sections for i in s.items) == ITEM_MAX_CHARS
     for assessment in (make(), make(airway={"mallampati": 4}, preeclampsia={"signs": ["stridor"]})):
-        plan = build_plan(assessment, cat, lists)
+        plan = plan_for(assessment, cat, lists)
         for paper in ("A4", "letter"):
             assert render_plan_pdf(plan, paper).startswith(b"%PDF")
     for kind in SHEETS:
         assert render_sheet_pdf(build_sheet(kind, lists, cat, ())).startswith(b"%PDF")
-
-
-def _fragments(paragraph: object) -> list[list[tuple[str, str]]]:
-    return [sorted((k, repr(v)) for k, v in vars(f).items()) for f in paragraph.frags]  # type: ignore[attr-defined]
-
-
-@settings(max_examples=300)
-@given(
-    text=st.text(
-        alphabet=st.one_of(
-            st.sampled_from(" \n\t\r\xa0&<>;'\"-–≥µ/#"),
-            st.characters(codec="utf-8", exclude_categories=("Cs",)),
-        ),
-        max_size=80,
-    ),
-    which=st.sampled_from(["body", "small", "h2", "key_value", "caution", "upper"]),
-)
-def test_plain_paragraphs_are_what_reportlabs_parser_makes(text: str, which: str) -> None:
-    """Plain text skips reportlab's markup parser (start-up time); what it gets must be
-    exactly what the parser makes of the escaped text: the same fragments, text and
-    style, for any text and each style (one with a text transform too)."""
-    from reportlab.lib.styles import ParagraphStyle
-    from reportlab.platypus import Paragraph as Reportlab
-
-    from airway.markup import escape
-    from airway.render_pdf import _styles, plain_paragraph, use_fonts
-
-    use_fonts()
-    styles = _styles()
-    style = (
-        ParagraphStyle("upper", parent=styles["body"], textTransform="uppercase")
-        if which == "upper"
-        else styles[which]
-    )
-    fast = plain_paragraph(text, style)
-    parsed = Reportlab(escape(text), style)
-    assert _fragments(fast) == _fragments(parsed)
-    assert fast.text == parsed.text
-    assert vars(fast.style) == vars(parsed.style)
-
-
-def test_plain_paragraph_fragments_go_with_their_styles() -> None:
-    """The fragment worked out per style is held only while its style lives: a clinic
-    list of a thousand PDFs must not keep every plan's styles (it once did)."""
-    import gc
-
-    from airway.render_pdf import _PLAIN_FRAGMENT
-
-    plan = build_plan(make())
-    for _ in range(3):
-        render_plan_pdf(plan)
-    gc.collect()
-    assert len(_PLAIN_FRAGMENT) == 0
