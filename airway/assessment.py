@@ -7,7 +7,6 @@ them a value is refused; inside them but improbable (see
 :func:`airway.plan.build_plan`) it gives a warning in the plan.
 """
 
-from __future__ import annotations
 
 import unicodedata
 from datetime import date

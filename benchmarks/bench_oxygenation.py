@@ -10,9 +10,10 @@ from __future__ import annotations
 import statistics
 import time
 
+from airway.oxygenation import oxygenation_for
+
 from airway import build_plan
 from airway.loading import assessment_from_mapping
-from airway.oxygenation import oxygenation_for
 
 CASES = {
     "term, BMI 27": {"patient": {"weight_kg": 75, "height_cm": 165}},

@@ -9,12 +9,12 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
+from airway import plan_for
 from airway.cli import app
-from airway.workflows.clinic import read_clinic_list
 from airway.errors import InputError
 from airway.fields import field_specs
 from airway.loading import parse_assessment
-from airway import plan_for
+from airway.workflows.clinic import read_clinic_list
 
 from .conftest import AIRWAY_FINDINGS
 

@@ -21,7 +21,7 @@ def _modules() -> dict[str, Path]:
 
 def _imports(name: str, path: Path) -> set[str]:
     """Absolute names of every module a file imports, anywhere in it (lazy ones too)."""
-    package = name.rsplit(".", 1)[0] if not path.name == "__init__.py" else name
+    package = name.rsplit(".", 1)[0] if path.name != "__init__.py" else name
     found: set[str] = set()
     for node in ast.walk(ast.parse(path.read_text("utf-8"))):
         if isinstance(node, ast.Import):

@@ -9,9 +9,9 @@ from pathlib import Path
 from pypdf import PdfReader
 
 from airway import plan_for
-from airway.unit.checklists import load_checklists
 from airway.cli import app
 from airway.engine.plan import RULES_VERSION
+from airway.unit.checklists import load_checklists
 
 from .conftest import ROOT, make
 

@@ -11,10 +11,10 @@ from pypdf import PdfReader
 
 from airway import plan_for
 from airway.engine.decision import DECISION_TITLE, HEADLINE, URGENCY_TEXT
+from airway.engine.scoring import LEVEL_LABELS, level_heading
 from airway.render.markdown import render_markdown
 from airway.render.pdf.plan import render_plan_pdf
 from airway.render.text import render_text
-from airway.engine.scoring import LEVEL_LABELS, level_heading
 
 from .conftest import make
 

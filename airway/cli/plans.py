@@ -246,8 +246,11 @@ def quick(
     findings["urgency_category"] = alias(
         urgency_category, old_category, "--urgency-category", "--category"
     )
+    # The one screen shows no checklist, so it is planned without them.
+    one_screen = fmt is Format.text and not full and pdf is None
     with errors():
-        the_plan = plan_for(quick_assessment(**findings), load_catalogue(catalogue))
+        assessment = quick_assessment(**findings)
+        the_plan = plan_for(assessment, load_catalogue(catalogue), () if one_screen else None)
         write_pdf(the_plan, pdf, paper, force)
         emit(render(the_plan, fmt, compact=not full), output, force)
 

@@ -7,10 +7,10 @@ from pathlib import Path
 import pytest
 
 from airway import plan_for
-from airway.engine.checklists import CONDITIONS, VALUES, for_plan, generic
-from airway.unit.checklists import load_checklists, parse_checklist
 from airway.cli import app
+from airway.engine.checklists import CONDITIONS, VALUES, for_plan, generic
 from airway.errors import ChecklistError
+from airway.unit.checklists import load_checklists, parse_checklist
 
 from ..conftest import make
 

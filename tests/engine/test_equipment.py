@@ -12,8 +12,8 @@ from hypothesis import strategies as st
 from airway.assessment import OedemaSign
 from airway.engine.body import body_size
 from airway.engine.equipment import choose_equipment, choose_tubes
-from airway.unit.catalogue import load_catalogue
 from airway.errors import CatalogueError
+from airway.unit.catalogue import load_catalogue
 
 from ..conftest import make
 
@@ -92,4 +92,3 @@ def test_large_breasts_open_a_short_handle() -> None:
     assert any(i.name == "Short-handled laryngoscope" for i in eq.items)
     eq = choose_equipment(make(), body_size(80, 165), 1, CATALOGUE)
     assert not any(i.name == "Short-handled laryngoscope" for i in eq.items)
-

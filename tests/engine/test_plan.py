@@ -6,8 +6,7 @@ import json
 
 import pytest
 
-from airway import plan_for
-from airway import read_assessment
+from airway import plan_for, read_assessment
 from airway.engine.decision import URGENCY_POINTS
 from airway.engine.guidance import MAX_INTUBATION_ATTEMPTS
 from airway.engine.plan import CAUTION_AID, CAUTION_REASSESS
@@ -125,6 +124,5 @@ def test_digest_ignores_file_format(tmp_path) -> None:  # type: ignore[no-untype
     js = tmp_path / "a.json"
     js.write_text('{"patient": {"height_cm": 165, "weight_kg": 80}}')
     assert (
-        plan_for(read_assessment(toml)).input_sha256
-        == plan_for(read_assessment(js)).input_sha256
+        plan_for(read_assessment(toml)).input_sha256 == plan_for(read_assessment(js)).input_sha256
     )

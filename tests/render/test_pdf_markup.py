@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import subprocess
-import sys
 from xml.sax.saxutils import escape as stdlib_escape
 
 from hypothesis import given
@@ -20,4 +18,3 @@ def test_escape_equals_the_standard_library(text: str) -> None:
 
 def test_hostile_name_escapes_once() -> None:
     assert escape("A<B & Co> &amp;") == "A&lt;B &amp; Co&gt; &amp;amp;"
-

@@ -8,13 +8,10 @@ import subprocess
 from pathlib import Path
 
 import pytest
-from hypothesis import given, settings
-from hypothesis import strategies as st
 from pypdf import PdfReader
 from typer.testing import CliRunner
 
-from airway import plan_for
-from airway import read_assessment
+from airway import plan_for, read_assessment
 from airway.cli import app
 from airway.engine.decision import SHORT
 from airway.render.json import render_json
@@ -451,11 +448,11 @@ def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
     made the plan impossible to print)."""
     import re
 
-    from airway.checklist import ITEM_MAX_CHARS, TITLE_MAX_CHARS
-    from airway.unit.checklists import load_checklists
     from airway.catalogue import CATALOGUE_TEXT_MAX
-    from airway.unit.catalogue import load_catalogue
+    from airway.checklist import ITEM_MAX_CHARS, TITLE_MAX_CHARS
     from airway.render.pdf.sheets import render_sheet_pdf
+    from airway.unit.catalogue import load_catalogue
+    from airway.unit.checklists import load_checklists
     from airway.workflows.sheets import SHEETS, build_sheet
 
     root = Path(__file__).resolve().parents[2] / "airway" / "data"

@@ -9,9 +9,9 @@ from pathlib import Path
 from pypdf import PdfReader
 
 from airway import plan_for
-from airway.workflows.board import board_rows, load_plans
 from airway.cli import app
 from airway.render.json import render_json
+from airway.workflows.board import board_rows, load_plans
 
 from ..conftest import make
 

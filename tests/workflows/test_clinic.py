@@ -7,11 +7,11 @@ from pathlib import Path
 
 import pytest
 
+from airway import plan_for
 from airway.cli import app
 from airway.engine.triage import FLAGS
-from airway.workflows.clinic import read_clinic_list, sort_summary, summary_row
 from airway.fields import BY_PATH, column_reference, field_specs, parse_text
-from airway import plan_for
+from airway.workflows.clinic import read_clinic_list, sort_summary, summary_row
 
 from ..conftest import ROOT
 

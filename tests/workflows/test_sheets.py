@@ -11,13 +11,13 @@ import pytest
 from pypdf import PdfReader
 
 from airway import plan_for
-from airway.unit.checklists import load_checklists
 from airway.cli import app
-from airway.unit.catalogue import load_catalogue
 from airway.render.pdf.fonts import font
 from airway.render.pdf.sheets import BODY_PT_A4, render_sheet_pdf, sheet_styles
-from airway.workflows.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
+from airway.unit.catalogue import load_catalogue
+from airway.unit.checklists import load_checklists
 from airway.unit.contacts import load_contacts
+from airway.workflows.sheets import BAND_HEIGHTS_CM, BAND_WEIGHTS_KG, SHEETS, build_sheet
 
 from ..conftest import make
 from ..render.test_pdf_plan import _font_sizes
