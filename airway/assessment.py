@@ -4,7 +4,7 @@ Every bedside finding is optional. ``None`` means *not assessed* and is shown
 as such in the plan; it never stands in for a normal finding. Field names carry
 their units. Ranges are the limits of physiological plausibility: outside
 them a value is refused; inside them but improbable (see
-:func:`airway.plan.build_plan`) it gives a warning in the plan.
+:func:`airway.engine.plan.build_plan`) it gives a warning in the plan.
 """
 
 

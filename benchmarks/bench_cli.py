@@ -9,7 +9,7 @@ noisy, shared machine slows them alike:
 - PDF floor: a bare script that imports typer, pydantic and reportlab, registers
   DejaVu Sans and builds a one-page table document.
 
-Targets (issue 18): ``airway quick`` to the terminal at most 1.5 x the terminal
+Targets: ``airway quick`` to the terminal at most 1.5 x the terminal
 floor; ``airway quick --pdf`` at most 1.4 x the PDF floor. Prints medians and ratios.
 """
 

@@ -5,15 +5,13 @@ Reports the median of many runs and, in the same run, the ratio to building the
 whole plan, so the figures are comparable on a noisy shared machine.
 """
 
-from __future__ import annotations
-
 import statistics
 import time
 
-from airway.oxygenation import oxygenation_for
-
-from airway import build_plan
-from airway.loading import assessment_from_mapping
+from airway import assessment_from_mapping, plan_for
+from airway.engine.oxygenation import oxygenation_for
+from airway.unit.catalogue import load_catalogue
+from airway.unit.checklists import load_checklists
 
 CASES = {
     "term, BMI 27": {"patient": {"weight_kg": 75, "height_cm": 165}},
@@ -33,10 +31,11 @@ def _median_ms(fn, repeat: int = 60) -> float:  # type: ignore[no-untyped-def]
 
 
 def main() -> None:
+    catalogue, lists = load_catalogue(), load_checklists()
     for name, data in CASES.items():
         a = assessment_from_mapping(data)
         oxy = _median_ms(lambda a=a: oxygenation_for(a))
-        plan = _median_ms(lambda a=a: build_plan(a))
+        plan = _median_ms(lambda a=a: plan_for(a, catalogue, lists))
         print(
             f"{name:<45} oxygenation {oxy:6.2f} ms   whole plan {plan:6.2f} ms   "
             f"ratio {oxy / plan:.2f}"

@@ -1,5 +1,5 @@
 """The house's rules: which package may import which, what each may import from
-outside, and the size of modules and command bodies (conventions.md, issue 18)."""
+outside, and the size of modules and command bodies (conventions.md, the start-up budgets)."""
 
 import ast
 import subprocess

@@ -1,8 +1,8 @@
-"""The plan as data: what :func:`airway.plan.build_plan` returns and every renderer reads.
+"""The plan as data: what :func:`airway.engine.plan.build_plan` returns and every renderer reads.
 
 Models, and the few helpers that turn them into JSON data and back; no planning
-logic: the checklist filler (:mod:`airway.checklists`) and the plan builder
-(:mod:`airway.plan`) both import from here, so imports run one way: ``plan`` ->
+logic: the checklist filler (:mod:`airway.engine.checklists`) and the plan builder
+(:mod:`airway.engine.plan`) both import from here, so imports run one way: ``plan`` ->
 ``checklists`` -> ``plan_model``.
 
 What the engine computes is held in typed named tuples: immutable, built without

@@ -1,6 +1,6 @@
 """Run a clinic list: a JSON plan (and a PDF) per woman, a summary CSV and PDF.
 
-The I/O around :mod:`airway.clinic`. Every file is written atomically, so a kill
+The I/O around :mod:`airway.workflows.clinic`. Every file is written atomically, so a kill
 or a full disk leaves each finished output complete and no half-written file
 under a final name; temporary files left by a killed run are removed by the next.
 A folder that already holds outputs is refused unless ``force`` (replace) or

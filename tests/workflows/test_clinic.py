@@ -37,8 +37,8 @@ def test_every_model_field_is_a_column() -> None:
     assert expected <= paths and "assessed_on" in paths and "label" in paths
 
 
-def test_readme_column_reference_is_generated_from_the_model() -> None:
-    readme = (ROOT / "README.md").read_text("utf-8")
+def test_docs_column_reference_is_generated_from_the_model() -> None:
+    readme = (ROOT / "docs" / "clinic-lists.md").read_text("utf-8")
     block = readme.split("<!-- columns:start -->\n")[1].split("<!-- columns:end -->")[0]
     assert block == column_reference()
 
@@ -262,7 +262,7 @@ def test_out_naming_a_file_is_bad_input(runner, tmp_path: Path) -> None:
 
 
 def test_column_reference_is_a_table_of_three_columns_in_every_row() -> None:
-    """A bare '|' in a cell ('yes | no') starts a new column: the README's table read
+    """A bare '|' in a cell ('yes | no') starts a new column: the docs table read
     'no' as the meaning. Parsed here by markdown-it-py as GitHub would."""
     from markdown_it import MarkdownIt
 
