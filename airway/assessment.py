@@ -7,7 +7,6 @@ them a value is refused; inside them but improbable (see
 :func:`airway.engine.plan.build_plan`) it gives a warning in the plan.
 """
 
-
 import unicodedata
 from datetime import date
 from typing import Annotated, Literal

@@ -185,15 +185,6 @@ def _glottic_fo2(nasal_fo2: float, bmi_above_reference: float) -> float:
     return FO2_ROOM_AIR + (nasal_fo2 - FO2_ROOM_AIR) * patency
 
 
-def with_nasal_o2(
-    base: Physiology, nasal_fo2: float, weight_kg: float, height_cm: float
-) -> Physiology:
-    """``base`` with nasal O2 through apnoea: the same as :func:`physiology` with
-    ``pharyngeal_fo2=nasal_fo2`` for the same woman, without working it all out again."""
-    above = _bmi_above_reference(weight_kg, height_cm)
-    return base._replace(pharyngeal_fo2=_glottic_fo2(nasal_fo2, above))
-
-
 def physiology(
     weight_kg: float,
     height_cm: float,
