@@ -30,6 +30,11 @@ from .app import (
 )
 from .help import GroupedCommand
 
+PdfOutputOpt = Annotated[
+    Path,
+    typer.Option("--output", "-o", metavar="FILE", help="PDF file to write.", rich_help_panel=OUT),
+]
+
 
 class SheetKind(StrEnum):
     contents = "contents"
@@ -47,12 +52,7 @@ class SheetPaper(StrEnum):
 @app.command(cls=GroupedCommand)
 def sheet(
     kind: Annotated[SheetKind, typer.Argument(metavar="KIND", help="Which sheet.")],
-    output: Annotated[
-        Path,
-        typer.Option(
-            "--output", "-o", metavar="FILE", help="PDF file to write.", rich_help_panel=OUT
-        ),
-    ],
+    output: PdfOutputOpt,
     paper: Annotated[
         SheetPaper,
         typer.Option("--paper", help="A4, A3, US Letter or Tabloid.", rich_help_panel=OUT),
@@ -160,12 +160,7 @@ def batch(
 @app.command(cls=GroupedCommand)
 def board(
     folder: Annotated[Path, typer.Argument(metavar="DIR", help="A folder of saved JSON plans.")],
-    output: Annotated[
-        Path,
-        typer.Option(
-            "--output", "-o", metavar="FILE", help="PDF file to write.", rich_help_panel=OUT
-        ),
-    ],
+    output: PdfOutputOpt,
     max_age_days: Annotated[
         int,
         typer.Option(
