@@ -212,6 +212,15 @@ class Context(_Model):
         default=None,
         description="Could the operation go ahead under regional or awake technique instead?",
     )
+    maternal_arrest: bool | None = Field(
+        default=None,
+        description="Maternal cardiac arrest or peri-arrest: surgery proceeds whatever else",
+    )
+
+
+# Fields added after the first release enter an assessment's digest only when given,
+# so that plans saved before they existed keep their digests (docs/json-contract.md).
+ADDED_FIELDS: dict[str, set[str]] = {"context": {"maternal_arrest"}}
 
 
 class Identity(_Model):

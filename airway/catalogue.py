@@ -5,9 +5,10 @@ a unit's TOML file (or the shipped one) into it, and the engine chooses sizes on
 from what it lists.
 """
 
+import math
 from typing import Annotated
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 # A unit's names for its devices print in table cells of the plan and the trolley
 # sheets; a cell taller than a page cannot be laid out. One or two printed lines is
@@ -39,11 +40,61 @@ class Laryngoscopes(BaseModel):
     short_handle: CatalogueText
 
 
+TubeSize = Annotated[float, Field(gt=2, le=10, allow_inf_nan=False)]
+
+
 class Adjuncts(BaseModel):
     model_config = _CONFIG
     face_masks: CatalogueText
     oral_airways: CatalogueText
     bougie: CatalogueText
+    # The smallest tube (internal diameter, mm) the bougie passes through.
+    bougie_fits_from_mm: TubeSize = 6.0
+    # An aid that passes the smaller tubes (a small bougie or an exchange catheter),
+    # and the smallest tube it passes; None when the unit stocks none.
+    small_tube_aid: CatalogueText | None = None
+    small_tube_aid_fits_from_mm: TubeSize | None = None
+
+    @model_validator(mode="after")
+    def _aid_has_its_size(self) -> "Adjuncts":
+        if (self.small_tube_aid is None) != (self.small_tube_aid_fits_from_mm is None):
+            raise ValueError(
+                "small_tube_aid and small_tube_aid_fits_from_mm are given together or not at all"
+            )
+        return self
+
+
+def _a_number(value: object) -> object:
+    if isinstance(value, bool) or not isinstance(value, int | float) or math.isnan(value):
+        raise ValueError("must be a number of mg per mL, such as 50")
+    return value
+
+
+Strength = Annotated[float, Field(gt=0, le=1000, allow_inf_nan=False)]
+
+
+class Stock(BaseModel):
+    """One drug as the unit stocks it: its strength, and how it comes."""
+
+    model_config = _CONFIG
+    mg_per_ml: Strength
+    form: CatalogueText | None = None  # "1% emulsion, 20 mL ampoule"
+
+    @field_validator("mg_per_ml", mode="before")
+    @classmethod
+    def _strength_is_a_number(cls, value: object) -> object:
+        return _a_number(value)
+
+
+class Drugs(BaseModel):
+    """The strength of every drug the plan doses: millilitres are drawn from these."""
+
+    model_config = _CONFIG
+    propofol: Stock
+    thiopental: Stock
+    suxamethonium: Stock
+    rocuronium: Stock
+    sugammadex: Stock
 
 
 class Catalogue(BaseModel):
@@ -55,6 +106,7 @@ class Catalogue(BaseModel):
     supraglottic: Supraglottic
     laryngoscopes: Laryngoscopes
     airway_adjuncts: Adjuncts
+    drugs: Drugs
 
     @model_validator(mode="after")
     def _front_of_neck_stocked(self) -> "Catalogue":

@@ -181,17 +181,21 @@ def read_text_file(path: Path, error: type[InputError] = InputError) -> str:
         raise error(str(path), [Problem("(file)", "is not UTF-8 text")]) from None
 
 
-def read_toml_file(path: Path, error: type[InputError] = InputError) -> dict[str, Any]:
-    """A TOML file as a table; every way it can fail is ``error`` naming the file."""
+def toml_from_text(text: str, name: str, error: type[InputError] = InputError) -> dict[str, Any]:
+    """TOML text as a table; a syntax error is ``error`` naming ``name``."""
     import tomllib
 
-    text = read_text_file(path, error)
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise error(str(path), [Problem("(syntax)", f"not valid TOML: {exc}")]) from None
+        raise error(name, [Problem("(syntax)", f"not valid TOML: {exc}")]) from None
     except RecursionError:
-        raise error(str(path), [Problem("(structure)", "is nested far too deeply")]) from None
+        raise error(name, [Problem("(structure)", "is nested far too deeply")]) from None
+
+
+def read_toml_file(path: Path, error: type[InputError] = InputError) -> dict[str, Any]:
+    """A TOML file as a table; every way it can fail is ``error`` naming the file."""
+    return toml_from_text(read_text_file(path, error), str(path), error)
 
 
 def read_assessment(path: str | Path) -> Assessment:

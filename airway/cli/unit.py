@@ -212,6 +212,25 @@ def factors(fmt: DataFormatOpt = DataFormat.text, old_json: JsonAlias = False) -
 
 
 @app.command(cls=GroupedCommand)
+def population(
+    women: Annotated[
+        int, typer.Option(min=100, max=200_000, help="How many invented women to draw.")
+    ] = 20_000,
+    seed: Annotated[
+        int, typer.Option(help="Seed of the draw: the same seed, the same table.")
+    ] = 2026,
+) -> None:
+    """Level shares on a model population of women at term."""
+    from ..workflows.population import run, table
+
+    typer.echo(table(run(women, seed)), nl=False)
+    typer.echo(
+        "Invented women drawn from published prevalences (docs/method.md).\n"
+        "Target: levels 3-4 between 3% and 15%, level 4 at most 4%."
+    )
+
+
+@app.command(cls=GroupedCommand)
 def schema() -> None:
     """Print the JSON Schema of the assessment input."""
     from ..assessment import Assessment

@@ -38,6 +38,18 @@ BODY_FORMULA_WARNING = (
     "Body-size formulas come from non-pregnant adults and are not validated at term."
 )
 
+# A height not measured is taken as short, never as average: a shorter woman of the
+# same weight has a higher BMI (more airway risk counted, more caution in the
+# decision, faster desaturation) and a lower lean and BMI-30 weight (smaller doses
+# of the drugs dosed on them), so the plan is never less cautious nor more heavily
+# dosed than for any height from 150 cm up. 150 cm is shorter than about 19 women
+# in 20 (project rule; the centile is from memory).
+ASSUMED_HEIGHT_CM = 150.0
+HEIGHT_ASSUMED_TEXT = (
+    "Height not measured: planned on an assumed 150 cm (cautious: higher BMI, smaller "
+    "lean-weight doses); measure it and plan again."
+)
+
 ADJUSTED_WEIGHT_FACTOR = 0.4
 ADJUSTED_EVIDENCE = Evidence("erstad2004", "published", "IBW + 0.4 x (TBW - IBW)")
 
@@ -77,15 +89,16 @@ class BodySize(NamedTuple):
     """The scalars a plan doses on; ``None`` when height was not given."""
 
     weight_kg: float
-    height_cm: float | None
-    bmi: float | None
-    bmi_class: str | None
+    height_cm: float  # measured, or ASSUMED_HEIGHT_CM when height_assumed
+    bmi: float
+    bmi_class: str
     booking_bmi: float | None
-    ideal_weight_kg: float | None
-    lean_weight_kg: float | None
-    adjusted_weight_kg: float | None
+    ideal_weight_kg: float
+    lean_weight_kg: float
+    adjusted_weight_kg: float
     warnings: tuple[str, ...]
     basis: tuple[str, ...]
+    height_assumed: bool = False  # height not measured: ASSUMED_HEIGHT_CM stands in
 
 
 def body_size(
@@ -98,27 +111,15 @@ def body_size(
         f"Lean weight: {JANMAHASATIAN_EVIDENCE.describe()}",
         f"Adjusted weight: {ADJUSTED_EVIDENCE.describe()}",
     )
-    if height_cm is None:
-        return BodySize(
-            weight_kg=weight_kg,
-            height_cm=None,
-            bmi=None,
-            bmi_class=None,
-            booking_bmi=None,
-            ideal_weight_kg=None,
-            lean_weight_kg=None,
-            adjusted_weight_kg=None,
-            warnings=(
-                "Height not given: BMI, ideal, lean and adjusted weight cannot be "
-                "computed; doses are shown on total body weight.",
-            ),
-            basis=basis,
-        )
     warnings: list[str] = []
+    assumed = height_cm is None
+    if height_cm is None:
+        height_cm = ASSUMED_HEIGHT_CM
+        warnings.append(HEIGHT_ASSUMED_TEXT)
     value = bmi(weight_kg, height_cm)
     ideal = ideal_weight_devine_female(height_cm)
     lean = lean_weight_janmahasatian_female(weight_kg, height_cm)
-    if height_cm / CM_PER_INCH < DEVINE_MIN_HEIGHT_IN:
+    if not assumed and height_cm / CM_PER_INCH < DEVINE_MIN_HEIGHT_IN:
         warnings.append(
             f"Height {height_cm:g} cm is below 152.4 cm (60 in), the range the Devine "
             "ideal-weight formula was made for; ideal and adjusted weight are extrapolated."
@@ -145,4 +146,5 @@ def body_size(
         adjusted_weight_kg=round(adjusted_weight(weight_kg, ideal), 2),
         warnings=tuple(warnings),
         basis=basis,
+        height_assumed=assumed,
     )

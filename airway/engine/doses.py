@@ -5,8 +5,10 @@ Where sources disagree on the scalar, the dose carries the alternatives.
 """
 
 import functools
+import math
 from typing import Literal, NamedTuple
 
+from ..catalogue import Drugs, Stock
 from ..sources import Evidence
 from .body import BodySize
 
@@ -49,8 +51,29 @@ CONTINUITY_EVIDENCE = Evidence(
 )
 
 
+# Doses a clinician would draw up (project rule): whole milligrams in steps, weights
+# to the whole kilogram, millilitres to 0.5 mL (0.1 mL under 5 mL). Rounding to the
+# nearest step never leaves the published mg/kg range by more than half a step.
+ML_STEP, ML_FINE_STEP, ML_FINE_BELOW = 0.5, 0.1, 5.0
+ROUNDING_EVIDENCE = Evidence(
+    "project",
+    "project_rule",
+    "rounded to the nearest practical step; weight to the whole kilogram",
+)
+
+
+class Ceiling(NamedTuple):
+    """A dose above which the plan does not go, with where it comes from."""
+
+    mg: float
+    evidence: Evidence
+
+
 class Drug(NamedTuple):
-    """One catalogued drug: mg/kg range, scalars, concentration, evidence."""
+    """One catalogued drug: mg/kg range, scalars, step, ceiling, evidence.
+
+    Its strength (mg/mL) is not here: it comes from the unit's catalogue.
+    """
 
     name: str
     label: str
@@ -59,12 +82,16 @@ class Drug(NamedTuple):
     scalar_normal: Scalar
     scalar_obese: Scalar
     alternatives_obese: tuple[tuple[Scalar, str], ...]  # (scalar, source id)
-    mg_per_ml: float
+    step_mg: float
     dose_evidence: Evidence
     scalar_evidence: Evidence
-    concentration_evidence: Evidence
     note: str = ""
+    ceiling: Ceiling | None = None
 
+
+STRENGTH_EVIDENCE = Evidence(
+    "project", "project_rule", "strength as the unit's catalogue stocks it"
+)
 
 DRUGS: tuple[Drug, ...] = (
     Drug(
@@ -76,11 +103,14 @@ DRUGS: tuple[Drug, ...] = (
         "lean",
         (("adjusted", "nightingale2015"),),
         10.0,
-        Evidence("valtonen1989", "published", "obstetric induction trials used 2-2.5 mg/kg"),
+        Evidence(
+            "valtonen1989",
+            "published",
+            "2.5 mg/kg in that obstetric trial; 2 mg/kg in others (common practice range 2-2.5)",
+        ),
         Evidence("nightingale2015", "published", "lean weight for induction in obesity"),
-        Evidence("common_practice", "common_practice", "1% emulsion"),
-        note="Sources disagree: lean-weight doses were often too small (Subramani 2017); "
-        "2 mg/kg adjusted weight has also been used. Titrate.",
+        note="Sources disagree: lean-weight doses were often too small in morbid obesity "
+        "(Subramani 2017); 2 mg/kg adjusted weight has also been used. Titrate.",
     ),
     Drug(
         "thiopental",
@@ -90,11 +120,18 @@ DRUGS: tuple[Drug, ...] = (
         "total",
         "lean",
         (),
-        25.0,
+        10.0,
         Evidence("common_practice", "common_practice", "obstetric doses of 4-5 mg/kg"),
         Evidence("nightingale2015", "published", "lean weight in obesity"),
-        Evidence("common_practice", "common_practice", "2.5% solution"),
         note="More awareness than with propofol (AAGBI/SOBA 2015).",
+        ceiling=Ceiling(
+            500.0,
+            Evidence(
+                "common_practice",
+                "common_practice",
+                "usual upper limit of one induction dose, from memory",
+            ),
+        ),
     ),
     Drug(
         "suxamethonium",
@@ -104,11 +141,18 @@ DRUGS: tuple[Drug, ...] = (
         "total",
         "total",
         (),
-        50.0,
+        10.0,
         Evidence("elorbany2010", "published", "1-1.5 mg/kg for rapid sequence induction"),
         Evidence("lemmens2006", "published", "total weight, also in obesity"),
-        Evidence("common_practice", "common_practice", "50 mg/mL ampoules; check local stock"),
         note="Saturation falls before 1 mg/kg wears off (Benumof 1997): never plan to wait for it.",
+        ceiling=Ceiling(
+            200.0,
+            Evidence(
+                "common_practice",
+                "common_practice",
+                "no published cap found; from memory",
+            ),
+        ),
     ),
     Drug(
         "rocuronium",
@@ -118,14 +162,13 @@ DRUGS: tuple[Drug, ...] = (
         "total",
         "lean",
         (("ideal", "leykin2004"),),
-        10.0,
+        5.0,
         Evidence("williamson2011", "published", "1.2 mg/kg in obstetric rapid sequence induction"),
         Evidence(
             "nightingale2015",
             "published",
             "lean weight in obesity, never total weight (prolongs the block)",
         ),
-        Evidence("common_practice", "common_practice", "10 mg/mL"),
         note="Scalar in obesity disputed: lean (AAGBI/SOBA 2015) or ideal weight (Leykin 2004).",
     ),
     Drug(
@@ -143,7 +186,6 @@ DRUGS: tuple[Drug, ...] = (
             "16 mg/kg for immediate reversal of rocuronium 1.2 mg/kg",
         ),
         Evidence("sugammadex_label", "from_memory", "actual body weight"),
-        Evidence("sugammadex_label", "published", "100 mg/mL"),
         note="Drawn up whenever rocuronium is used. It restores breathing, not the airway.",
     ),
 )
@@ -174,7 +216,7 @@ class Dose(NamedTuple):
     mg_per_ml: float
     volume_ml_low: float
     volume_ml_high: float
-    scaled_as_intended: bool  # False when height was missing and total weight stood in
+    scaled_as_intended: bool  # always True: a missing height is assumed (body.py)
     alternatives: tuple[Alternative, ...]
     basis: str
     note: str
@@ -182,29 +224,39 @@ class Dose(NamedTuple):
     # sentence that says so, and the guideline's scalar that would have given less.
     rule: str = ""
     held_from_scalar: str | None = None
+    step_mg: float = 1.0
+    ceiling_mg: float | None = None  # set when the ceiling lowered the dose
+    ceiling_text: str = ""  # the sentence that says so, with its source
+    strength_form: str = ""  # how the unit stocks it: "1% emulsion (common strength)"
 
 
 def held_rule_text(floor_kg: float) -> str:
     """The one sentence that explains a held dose."""
     return (
-        f"Held at the dose for BMI 30 at her height ({floor_kg:.1f} kg), because the "
+        f"Held at the dose for BMI 30 at her height ({floor_kg:.0f} kg), because the "
         "guideline's lighter scalar would give a heavier woman less than a lighter one "
         "(project rule); the guideline's dose is listed as an alternative."
     )
 
 
+def span(low: float, high: float) -> str:
+    """'95-140' or '1500' when both ends are the same."""
+    return f"{low:g}" if low == high else f"{low:g}-{high:g}"
+
+
 def mg_text(d: Dose) -> str:
-    """'95-142.5 mg' or '1520 mg'."""
-    if d.dose_mg_low == d.dose_mg_high:
-        return f"{d.dose_mg_low:g} mg"
-    return f"{d.dose_mg_low:g}-{d.dose_mg_high:g} mg"
+    """'100-140 mg' or '1500 mg'."""
+    return f"{span(d.dose_mg_low, d.dose_mg_high)} mg"
+
+
+def ml_text(d: Dose) -> str:
+    """'10-14 mL of 10 mg/mL' or '15 mL of 100 mg/mL'."""
+    return f"{span(d.volume_ml_low, d.volume_ml_high)} mL of {d.mg_per_ml:g} mg/mL"
 
 
 def dose_text(d: Dose) -> str:
-    """'95-142.5 mg (1.9-2.9 mL)' or '1520 mg (15.2 mL)'."""
-    if d.dose_mg_low == d.dose_mg_high:
-        return f"{mg_text(d)} ({d.volume_ml_low:g} mL)"
-    return f"{mg_text(d)} ({d.volume_ml_low:g}-{d.volume_ml_high:g} mL)"
+    """'100-140 mg (10-14 mL of 10 mg/mL)' or '1500 mg (15 mL of 100 mg/mL)'."""
+    return f"{mg_text(d)} ({ml_text(d)})"
 
 
 _SCALAR_FIELD = {
@@ -215,13 +267,21 @@ _SCALAR_FIELD = {
 }
 
 
-def _weight(body: BodySize, scalar: Scalar) -> float | None:
-    weight: float | None = getattr(body, _SCALAR_FIELD[scalar])
+def _weight(body: BodySize, scalar: Scalar) -> float:
+    weight: float = getattr(body, _SCALAR_FIELD[scalar])
     return weight
 
 
-def _mg(mg_per_kg: float, kg: float) -> float:
-    return round(mg_per_kg * kg, 1)
+def to_step(value: float, step: float) -> float:
+    """The nearest multiple of ``step`` (halves up), never below one step."""
+    return max(step, step * math.floor(value / step + 0.5))
+
+
+def millilitres(mg: float, mg_per_ml: float) -> float:
+    """Volume to draw up: to 0.5 mL, or to 0.1 mL under 5 mL."""
+    ml = mg / mg_per_ml
+    step = ML_FINE_STEP if ml < ML_FINE_BELOW else ML_STEP
+    return round(step * math.floor(ml / step + 0.5), 1)
 
 
 def boundary_weight_kg(height_cm: float) -> float:
@@ -230,8 +290,15 @@ def boundary_weight_kg(height_cm: float) -> float:
     return OBESE_BMI * metres * metres
 
 
-def _alternative(low: float, high: float, scalar: Scalar, kg: float, source: str) -> Alternative:
-    return Alternative(scalar, round(kg, 2), _mg(low, kg), _mg(high, kg), source)
+def _mg_range(drug: Drug, kg: float) -> tuple[float, float]:
+    low, high = drug.mg_per_kg
+    return to_step(low * kg, drug.step_mg), to_step(high * kg, drug.step_mg)
+
+
+def _alternative(drug: Drug, scalar: Scalar, kg: float, source: str) -> Alternative:
+    whole = float(round(kg))
+    low, high = _mg_range(drug, whole)
+    return Alternative(scalar, whole, low, high, source)
 
 
 @functools.cache  # the same few sentences for every woman: made once
@@ -239,78 +306,68 @@ def _basis(drug: Drug, held: bool) -> str:
     evidence: tuple[Evidence, ...] = (
         drug.dose_evidence,
         drug.scalar_evidence,
-        drug.concentration_evidence,
     )
     if held:
         evidence += (CONTINUITY_EVIDENCE,)
     return "; ".join(e.describe() for e in evidence)
 
 
-# The shipped drugs' basis sentences, by identity (hashing a whole drug costs more).
-_SHIPPED_BASIS = {(id(d), held): _basis(d, held) for d in DRUGS for held in (False, True)}
+def compute_dose(drug: Drug, body: BodySize, stock: Stock) -> Dose:
+    """Dose range for one drug and one woman, in practical steps, with its millilitres
+    at the strength the unit stocks.
 
-
-def compute_dose(drug: Drug, body: BodySize) -> Dose:
-    """Dose range for one drug and one woman.
-
-    Continuous and non-decreasing in weight at any height: see
+    Continuous in steps and non-decreasing in weight at any height: see
     :data:`CONTINUITY_EVIDENCE`.
     """
-    low, high = drug.mg_per_kg
-    bmi = body.bmi
-    obese = bmi is not None and bmi >= OBESE_BMI
+    obese = body.bmi >= OBESE_BMI
     wanted: Scalar = drug.scalar_obese if obese else drug.scalar_normal
     kg = _weight(body, wanted)
-    scaled = kg is not None
-    note = drug.note
     alternatives: tuple[Alternative, ...] = ()
     rule, held_from = "", None
-    if obese and kg is not None and body.height_cm is not None and wanted != "total":
+    if obese and wanted != "total":
         floor = boundary_weight_kg(body.height_cm)
         if kg < floor:
-            alternatives = (_alternative(low, high, wanted, kg, drug.scalar_evidence.source),)
+            alternatives = (_alternative(drug, wanted, kg, drug.scalar_evidence.source),)
             rule, held_from = held_rule_text(floor), wanted
             wanted, kg = "boundary", floor
-    if bmi is None and drug.scalar_obese != "total":
-        scaled = False
-        note = (
-            f"Height missing: not scaled to {SCALAR_LABEL[drug.scalar_obese]}; shown on "
-            "total weight, which overestimates the dose in obesity. " + note
-        ).strip()
-    if kg is None:
-        wanted, kg = "total", body.weight_kg
-    # Dose on the weight as shown, so mg/kg x shown weight checks exactly.
-    kg = round(kg, 2)
+    kg = float(round(kg))  # dose on the weight as shown, so mg/kg x weight checks
     if obese:
         for scalar, source in drug.alternatives_obese:
-            alt_kg = _weight(body, scalar)
-            if alt_kg is not None:
-                alternatives += (_alternative(low, high, scalar, alt_kg, source),)
-    held = held_from is not None
-    basis = _SHIPPED_BASIS.get((id(drug), held)) or _basis(drug, held)
-    per_ml = drug.mg_per_ml
+            alternatives += (_alternative(drug, scalar, _weight(body, scalar), source),)
+    low, high = _mg_range(drug, kg)
+    ceiling_mg, ceiling_text = None, ""
+    if drug.ceiling is not None and high > drug.ceiling.mg:
+        ceiling_mg = drug.ceiling.mg
+        low, high = min(low, ceiling_mg), ceiling_mg
+        ceiling_text = (
+            f"{drug.label} kept to {ceiling_mg:g} mg at most ({drug.ceiling.evidence.describe()})."
+        )
     return Dose(
         drug.name,
         drug.label,
         drug.role,
-        low,
-        high,
+        drug.mg_per_kg[0],
+        drug.mg_per_kg[1],
         wanted,
         kg,
-        round(low * kg, 1),  # _mg, written out
-        round(high * kg, 1),
-        per_ml,
-        round(low * kg / per_ml, 1),
-        round(high * kg / per_ml, 1),
-        scaled,
+        low,
+        high,
+        stock.mg_per_ml,
+        millilitres(low, stock.mg_per_ml),
+        millilitres(high, stock.mg_per_ml),
+        True,
         alternatives,
-        basis,
-        note,
+        _basis(drug, held_from is not None),
+        drug.note,
         rule,
         held_from,
+        drug.step_mg,
+        ceiling_mg,
+        ceiling_text,
+        stock.form or "",
     )
 
 
-def compute_doses(body: BodySize) -> tuple[Dose, ...]:
-    """All catalogued drugs for one woman."""
-    return tuple(compute_dose(d, body) for d in DRUGS)
+def compute_doses(body: BodySize, stocks: Drugs) -> tuple[Dose, ...]:
+    """All catalogued drugs for one woman, at the strengths the unit stocks."""
+    return tuple(compute_dose(d, body, getattr(stocks, d.name)) for d in DRUGS)

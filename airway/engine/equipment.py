@@ -12,17 +12,19 @@ from ..catalogue import Catalogue
 from ..sources import Evidence
 from .body import BodySize
 
-# Desired first / backup / smallest tube (ID, mm). Project rule built on the
-# traditional obstetric range of 6.0-7.0 mm (MGH handbook; issue text) and the
-# fact that 6.0 mm still takes the usual intubation aids (Karmali & Rose 2020).
+# Desired first / backup / smallest tube (ID, mm), a project rule. The traditional
+# obstetric range is 6.0-6.5 mm (MGH handbook); the 7.0 mm first tube rests on the
+# usual size for women outside pregnancy (7.0-7.5 mm, Karmali & Rose 2020, a
+# non-obstetric review), with 6.5 and 6.0 mm from the obstetric range; 6.0 mm still
+# takes the usual intubation aids (Karmali & Rose 2020).
 TUBES_ROUTINE = (7.0, 6.5, 6.0)
 TUBES_PREECLAMPSIA = (6.5, 6.0, 5.5)
 TUBES_OEDEMA = (6.0, 5.5, 5.0)
 TUBE_EVIDENCE = Evidence(
     "karmali2020",
     "project_rule",
-    "sizes within the traditional obstetric range (MGH handbook); smaller with "
-    "pre-eclampsia or oedema is expert opinion, no evidence-based size exists",
+    "7.0 mm first as for women outside pregnancy; 6.0-6.5 mm the traditional obstetric "
+    "range (MGH handbook); smaller with pre-eclampsia or oedema is expert opinion",
 )
 SGA_EVIDENCE = Evidence(
     "avidan2015", "published", "makers' weight bands differ and are not evidence-based"
@@ -51,6 +53,8 @@ class TubeSizes(NamedTuple):
     smallest: float
     reason: str
     evidence: str
+    # Sizes the plan wanted that the unit does not stock (a larger one stands in).
+    unmet: tuple[float, ...] = ()
 
 
 class Item(NamedTuple):
@@ -70,6 +74,7 @@ class Equipment(NamedTuple):
     front_of_neck_tube_mm: float
     first_laryngoscope: str
     items: tuple[Item, ...]
+    warnings: tuple[str, ...] = ()  # what the unit's stock cannot give this plan
 
 
 _TUBE_BASIS = TUBE_EVIDENCE.describe()
@@ -90,13 +95,36 @@ def choose_tubes(assessment: Assessment, catalogue: Catalogue) -> TubeSizes:
     first = _snap(desired[0], stocked)
     backup = min(first, _snap(desired[1], stocked))
     smallest = min(backup, _snap(desired[2], stocked))
+    unmet = tuple(d for d, got in zip(desired, (first, backup, smallest), strict=True) if got > d)
     return TubeSizes(
         first=first,
         backup=backup,
         smallest=smallest,
         reason=reason,
         evidence=_TUBE_BASIS,
+        unmet=unmet,
     )
+
+
+def stock_warnings(tubes: TubeSizes, catalogue: Catalogue) -> tuple[str, ...]:
+    """What the unit's stock cannot give this plan: never a silent larger tube, never a
+    small tube without an aid that passes it."""
+    out = []
+    if tubes.unmet:
+        sizes = ", ".join(f"{s:.1f}" for s in tubes.unmet)
+        out.append(
+            f"The unit's catalogue stocks no {sizes} mm tracheal tube: a larger size stands in. "
+            "Bring the smaller tube to theatre."
+        )
+    adj = catalogue.airway_adjuncts
+    aid_fits = adj.small_tube_aid_fits_from_mm
+    if tubes.smallest < adj.bougie_fits_from_mm and (aid_fits is None or tubes.smallest < aid_fits):
+        out.append(
+            f"The {tubes.smallest:.1f} mm tube is too small for the bougie, and the unit's "
+            "catalogue lists no small-tube aid that passes it: bring a small bougie or an "
+            "exchange catheter."
+        )
+    return tuple(out)
 
 
 def choose_equipment(
@@ -152,6 +180,7 @@ def choose_equipment(
             name="Direct laryngoscope", detail=lar.direct, why="standard", open_now=not video_first
         ),
         Item(name="Bougie", detail=adj.bougie, why="first-attempt aid", open_now=True),
+        *_small_tube_aid(tubes, catalogue),
         Item(
             name="Supraglottic airway",
             detail=f"size {sga:g}, {catalogue.supraglottic.device}",
@@ -193,4 +222,24 @@ def choose_equipment(
         if video_first
         else "direct laryngoscope (videolaryngoscope on and ready)",
         items=tuple(items),
+        warnings=stock_warnings(tubes, catalogue),
     )
+
+
+def _small_tube_aid(tubes: TubeSizes, catalogue: Catalogue) -> list[Item]:
+    """The aid that passes the smallest tube, when the bougie does not (and one is stocked)."""
+    adj = catalogue.airway_adjuncts
+    fits = adj.small_tube_aid_fits_from_mm
+    if tubes.smallest >= adj.bougie_fits_from_mm or adj.small_tube_aid is None or fits is None:
+        return []
+    if tubes.smallest < fits:
+        return []
+    return [
+        Item(
+            name="Small-tube aid",
+            detail=adj.small_tube_aid,
+            why=f"the {tubes.smallest:.1f} mm tube is too small for the bougie "
+            f"(it passes tubes from {adj.bougie_fits_from_mm:.1f} mm)",
+            open_now=True,
+        )
+    ]

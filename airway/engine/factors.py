@@ -88,11 +88,24 @@ class Factor(NamedTuple):
     evidence: Evidence
     read: Reader
     prepares: str = ""  # what the plan must prepare because of it
+    domain: str = ""  # the anatomy it reads: one contribution per domain (scoring.py)
+    # The ratio for a normal finding where the source gives one (a negative
+    # likelihood ratio); None: a normal finding adds nothing.
+    weight_normal: float | None = None
+    # The weight is divided by this before it counts: for the Mallampati classes, the
+    # average relative risk at term, so that the classes are ratios against the
+    # average woman rather than against class 1 (MALLAMPATI_CENTRE).
+    centre: float = 1.0
 
     @property
     def log_weight(self) -> float:
-        """Natural log of the weight (per unit for per-unit factors); 0 for rules."""
-        return 0.0 if self.weight is None else math.log(self.weight)
+        """Natural log of the centred weight (per unit for per-unit factors); 0 for rules."""
+        return 0.0 if self.weight is None else math.log(self.weight / self.centre)
+
+    @property
+    def log_weight_normal(self) -> float:
+        """Natural log of the ratio for a normal finding; 0 when there is none."""
+        return 0.0 if self.weight_normal is None else math.log(self.weight_normal)
 
 
 def _flag(value: bool | None, detail: str = "") -> Reading:
@@ -116,8 +129,6 @@ def _mallampati(cls: int) -> Reader:
 
 
 def _bmi(_a: Assessment, b: BodySize) -> Reading:
-    if b.bmi is None:
-        return NOT_ASSESSED
     above = max(0.0, b.bmi - BMI_REFERENCE)
     if not above > 0:
         return ABSENT
@@ -199,36 +210,46 @@ def _labour(a: Assessment, _b: BodySize) -> Reading:
     return _flag(a.patient.in_labour)
 
 
+# Severe pre-eclampsia: what blunting the pressor response and magnesium mean for
+# the anaesthetic (common practice; the drugs named are those usually used, from
+# memory: check local guidance for doses).
+PRESSOR_RESPONSE_PREPARATION = (
+    "smaller tubes; blunt the pressor response to laryngoscopy (remifentanil or "
+    "alfentanil at induction, or labetalol before it); magnesium prolongs neuromuscular "
+    "block: monitor it, sugammadex ready"
+)
+
 _ROCKE_MEMORY = "relative risk against Mallampati I; value quoted from memory, check the paper"
 
+# Rocke 1992's relative risks are against class 1. Multiplied as they stand, class 2
+# (the commonest class at term) would count as a finding. Each class is therefore
+# divided by the average relative risk at term, so that a class counts as a ratio
+# against the average woman: class 1 below 1, class 2 near 1, classes 3-4 above.
+MALLAMPATI_RR = {1: 1.0, 2: 3.23, 3: 7.58, 4: 11.3}  # Rocke 1992
+# Share of each class late in pregnancy: classes 3-4 together 10.3% in the 8th
+# month (Boutonnet 2010) and 10.4% before elective caesarean (Tan 2019); the split
+# of 1 from 2 and of 3 from 4 is assumed (project rule).
+MALLAMPATI_TERM_SHARE = {1: 0.40, 2: 0.497, 3: 0.083, 4: 0.020}
+MALLAMPATI_CENTRE = sum(MALLAMPATI_TERM_SHARE[c] * MALLAMPATI_RR[c] for c in MALLAMPATI_RR)
+_CENTRED = "relative risk against class 1, divided by the average at term (project rule)"
+
+
+def _mallampati_factor(cls: int) -> Factor:
+    return Factor(
+        f"mallampati_{cls}",
+        f"Mallampati class {cls}",
+        "difficulty",
+        "relative_risk",
+        MALLAMPATI_RR[cls],
+        Evidence("rocke1992", "published", _CENTRED),
+        _mallampati(cls),
+        domain="view",
+        centre=MALLAMPATI_CENTRE,
+    )
+
+
 CATALOGUE: tuple[Factor, ...] = (
-    Factor(
-        "mallampati_2",
-        "Mallampati class 2",
-        "difficulty",
-        "relative_risk",
-        3.23,
-        Evidence("rocke1992", "published", "relative risk against class 1"),
-        _mallampati(2),
-    ),
-    Factor(
-        "mallampati_3",
-        "Mallampati class 3",
-        "difficulty",
-        "relative_risk",
-        7.58,
-        Evidence("rocke1992", "published", "relative risk against class 1"),
-        _mallampati(3),
-    ),
-    Factor(
-        "mallampati_4",
-        "Mallampati class 4",
-        "difficulty",
-        "relative_risk",
-        11.3,
-        Evidence("rocke1992", "published", "relative risk against class 1"),
-        _mallampati(4),
-    ),
+    *(_mallampati_factor(cls) for cls in (1, 2, 3, 4)),
     Factor(
         "short_neck",
         "Short neck",
@@ -237,6 +258,7 @@ CATALOGUE: tuple[Factor, ...] = (
         5.01,
         Evidence("rocke1992", "from_memory", _ROCKE_MEMORY),
         lambda a, _b: _flag(a.airway.short_neck),
+        domain="neck",
     ),
     Factor(
         "receding_mandible",
@@ -246,6 +268,7 @@ CATALOGUE: tuple[Factor, ...] = (
         9.71,
         Evidence("rocke1992", "from_memory", _ROCKE_MEMORY),
         lambda a, _b: _flag(a.airway.receding_mandible),
+        domain="jaw",
     ),
     Factor(
         "protruding_incisors",
@@ -255,6 +278,7 @@ CATALOGUE: tuple[Factor, ...] = (
         8.0,
         Evidence("rocke1992", "from_memory", _ROCKE_MEMORY),
         lambda a, _b: _flag(a.airway.protruding_incisors),
+        domain="jaw",
     ),
     Factor(
         "upper_lip_bite_3",
@@ -264,6 +288,7 @@ CATALOGUE: tuple[Factor, ...] = (
         14.0,
         Evidence("detsky2019", "published", "positive likelihood ratio; classes per Khan 2003"),
         _ulbt,
+        domain="jaw",
     ),
     Factor(
         "thyromental_short",
@@ -277,6 +302,8 @@ CATALOGUE: tuple[Factor, ...] = (
             "LR+ pooled over cut-offs < 4 to < 7 cm; 6 cm (Patil) from memory",
         ),
         lambda a, _b: _below(a.airway.thyromental_cm, THYROMENTAL_SHORT_CM, "cm"),
+        weight_normal=0.63,  # Detsky 2019 negative likelihood ratio
+        domain="jaw",
     ),
     Factor(
         "sternomental_short",
@@ -290,6 +317,8 @@ CATALOGUE: tuple[Factor, ...] = (
             "LR+ pooled over cut-offs < 12 to 15 cm; 12.5 cm (Savva) from memory",
         ),
         lambda a, _b: _below(a.airway.sternomental_cm, STERNOMENTAL_SHORT_CM, "cm"),
+        weight_normal=0.65,  # Detsky 2019 negative likelihood ratio
+        domain="neck",
     ),
     Factor(
         "mouth_opening_small",
@@ -299,6 +328,8 @@ CATALOGUE: tuple[Factor, ...] = (
         3.6,
         Evidence("detsky2019", "published", "LR+ pooled over cut-offs < 2 to 5 cm"),
         lambda a, _b: _below(a.airway.mouth_opening_cm, MOUTH_OPENING_SMALL_CM, "cm"),
+        weight_normal=0.71,  # Detsky 2019 negative likelihood ratio
+        domain="jaw",
     ),
     Factor(
         "neck_movement_reduced",
@@ -308,6 +339,8 @@ CATALOGUE: tuple[Factor, ...] = (
         4.2,
         Evidence("detsky2019", "published", "LR+ for impaired neck mobility"),
         _neck_movement,
+        weight_normal=0.77,  # Detsky 2019 negative likelihood ratio
+        domain="neck",
     ),
     Factor(
         "jaw_protrusion_limited",
@@ -317,6 +350,8 @@ CATALOGUE: tuple[Factor, ...] = (
         5.5,
         Evidence("detsky2019", "published", "LR+ for impaired mandibular protrusion"),
         _jaw,
+        weight_normal=0.78,  # Detsky 2019 negative likelihood ratio
+        domain="jaw",
     ),
     Factor(
         "snoring",
@@ -326,6 +361,8 @@ CATALOGUE: tuple[Factor, ...] = (
         3.4,
         Evidence("detsky2019", "published", "LR+ for a history of snoring"),
         lambda a, _b: _flag(a.history.snoring),
+        weight_normal=0.65,  # Detsky 2019 negative likelihood ratio
+        domain="soft_tissue",
     ),
     Factor(
         "bmi",
@@ -339,6 +376,7 @@ CATALOGUE: tuple[Factor, ...] = (
             "adjusted odds ratio of failed intubation per kg/m²; counted above 25 (project rule)",
         ),
         _bmi,
+        domain="habitus",
     ),
     Factor(
         "age",
@@ -353,6 +391,7 @@ CATALOGUE: tuple[Factor, ...] = (
             "(McKeen 2011 threshold)",
         ),
         _age,
+        domain="age",
     ),
     Factor(
         "preeclampsia_without_severe",
@@ -367,6 +406,7 @@ CATALOGUE: tuple[Factor, ...] = (
         ),
         _preeclampsia("without_severe_features"),
         prepares="smaller tracheal tubes; look for airway oedema just before induction",
+        domain="soft_tissue",
     ),
     Factor(
         "preeclampsia_with_severe",
@@ -380,7 +420,8 @@ CATALOGUE: tuple[Factor, ...] = (
             "no published ratio; airway narrower in pre-eclampsia (Izci 2003)",
         ),
         _preeclampsia("with_severe_features"),
-        prepares="smaller tracheal tubes; pressor response to laryngoscopy must be blunted",
+        prepares=PRESSOR_RESPONSE_PREPARATION,
+        domain="soft_tissue",
     ),
     Factor(
         "airway_oedema_signs",
@@ -398,6 +439,7 @@ CATALOGUE: tuple[Factor, ...] = (
         _oedema,
         prepares="smaller tubes (down to 5.0-5.5 mm); front-of-neck kit open; "
         "expect rapid desaturation",
+        domain="soft_tissue",
     ),
     Factor(
         "stridor",
@@ -449,6 +491,7 @@ CATALOGUE: tuple[Factor, ...] = (
         lambda a, _b: _flag(a.airway.large_breasts),
         prepares="short-handled laryngoscope; ramp; assistant retracts breasts "
         "caudally or tapes them",
+        domain="habitus",
     ),
     Factor(
         "in_labour",
@@ -493,7 +536,11 @@ CATALOGUE: tuple[Factor, ...] = (
         "rule",
         None,
         Evidence(
-            "handbook_bedside", "published", "strongest predictor of impossible mask ventilation"
+            "handbook_bedside",
+            "from_memory",
+            "43 cm from a handbook table that names no primary study (probably obese "
+            "cohorts); the same handbook calls it the strongest predictor of impossible "
+            "mask ventilation",
         ),
         _neck_circumference,
         prepares="difficult mask ventilation likely: two-person technique, "

@@ -19,6 +19,7 @@ from typing import NamedTuple
 
 from ..assessment import Assessment
 from ..sources import Evidence
+from .body import ASSUMED_HEIGHT_CM
 
 # Gas pressures (mmHg): sea-level barometric pressure, water vapour at 37 °C.
 BAROMETRIC_MMHG = 760.0  # common practice
@@ -52,10 +53,13 @@ SHUNT_PER_BMI_UNIT = 0.004
 SHUNT_MAX = 0.25
 # Nasal oxygen reaches the glottis only through a patent upper airway, which
 # obese women often lose during apnoea: apnoeic oxygenation buys only minutes
-# at BMI 50 (ICSM simulator, BJA 2021: 1.8-8.5 min) but hours at BMI 24. The
-# glottic O2 fraction falls from the nasal value towards room air as
-# exp(-0.06 x (BMI - 25)): a project calibration.
-NASAL_PATENCY_DECAY_PER_BMI_UNIT = 0.06
+# at BMI 50 (ICSM simulator, BJA 2021: 1.8-8.5 min more with high-flow nasal
+# oxygen) but hours at BMI 24. The glottic O2 fraction falls from the nasal value
+# towards room air as exp(-0.02 x (BMI - 25)): a project calibration that puts the
+# gain at BMI 50 in labour at about 2.4 min, inside that range, and the time to
+# SpO2 90% with high flow at BMI 50 near the 4.3 min of Ellis et al. (Nottingham,
+# about 2024, year from memory). Apnoea on room air is unchanged by it.
+NASAL_PATENCY_DECAY_PER_BMI_UNIT = 0.02
 
 # Oxygen consumption. Brody's allometric rule VO2 = 10 x kg^0.75 mL/min (from
 # memory) gives about 240 mL/min at 70 kg, close to the 250 mL/min under
@@ -150,8 +154,11 @@ class Physiology(NamedTuple):
 
 
 def minutes_label(minutes: float | None, horizon: float) -> str:
-    """'3.7', or '> 20' when the model did not reach the threshold within its horizon."""
-    return f"> {horizon:g}" if minutes is None else f"{minutes:g}"
+    """'3.7'; '> 20' when the model did not reach the threshold within its horizon; '< 0.1'
+    when it is reached at once (never '0', which reads as no time to think about)."""
+    if minutes is None:
+        return f"> {horizon:g}"
+    return "< 0.1" if minutes < 0.1 else f"{minutes:g}"
 
 
 def saturation(po2_mmhg: float, p50_mmhg: float = SEVERINGHAUS_P50_MMHG) -> float:
@@ -359,8 +366,8 @@ def oxygenation_for(assessment: Assessment, feo2: float = FEO2_DEFAULT) -> Oxyge
     assumptions = []
     height = pt.height_cm
     if height is None:
-        height = 160.0
-        assumptions.append("height not given: 160 cm assumed for lung volume")
+        height = ASSUMED_HEIGHT_CM
+        assumptions.append(f"height not measured: {ASSUMED_HEIGHT_CM:g} cm assumed (cautious)")
     if pt.age_years is None:
         assumptions.append("age not given: 30 years assumed")
     if pt.haemoglobin_g_per_l is None:

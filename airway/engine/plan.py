@@ -8,7 +8,7 @@ import hashlib
 import json
 
 from .. import __version__
-from ..assessment import Assessment
+from ..assessment import ADDED_FIELDS, Assessment
 from ..catalogue import Catalogue
 from ..checklist import Checklist
 from ..sources import Evidence
@@ -30,7 +30,7 @@ from .plan_model import GeneratedBy, Plan, Step
 from .scoring import Risk, score
 
 # Bumped whenever a weight, threshold, band, dose or step changes meaning.
-RULES_VERSION = "2026.12.3"
+RULES_VERSION = "2026.12.4"
 
 PREOX_TARGET_FEO2 = 0.9
 PREOX_EVIDENCE = Evidence(
@@ -78,7 +78,12 @@ _CANONICAL = json.JSONEncoder(sort_keys=True, separators=(",", ":"), ensure_asci
 
 def assessment_digest(assessment: Assessment) -> str:
     """SHA-256 of the assessment's canonical JSON: the same findings, the same digest."""
-    canonical = _CANONICAL.encode(assessment.model_dump(mode="json"))
+    data = assessment.model_dump(mode="json")
+    for section, names in ADDED_FIELDS.items():
+        for name in names:
+            if data[section].get(name) is None:
+                del data[section][name]
+    canonical = _CANONICAL.encode(data)
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
 
@@ -309,10 +314,12 @@ def _steps(
     )
 
 
-def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[str]:
+def _warnings(
+    a: Assessment, body: BodySize, doses: tuple[Dose, ...], equipment: Equipment
+) -> list[str]:
     out: list[str] = list(body.warnings)
     p = a.patient
-    if body.bmi is not None and body.bmi > IMPROBABLE_BMI:
+    if body.bmi > IMPROBABLE_BMI:
         out.append(f"BMI {body.bmi:.1f} is above {IMPROBABLE_BMI:g}: check weight and height.")
     if p.age_years is not None and not IMPROBABLE_AGE[0] <= p.age_years <= IMPROBABLE_AGE[1]:
         out.append(f"Age {p.age_years} years is unusual: check it.")
@@ -322,16 +329,22 @@ def _warnings(a: Assessment, body: BodySize, doses: tuple[Dose, ...]) -> list[st
         out.append("Booking weight is more than 10 kg above current weight: check both.")
     if a.airway.mallampati is None:
         out.insert(0, "Mallampati not assessed: the airway level may understate the difficulty.")
-    unscaled = [d.label for d in doses if not d.scaled_as_intended]
-    if unscaled:
-        out.append(
-            "Not scaled to lean or ideal weight (height missing), shown on total "
-            "weight instead: " + ", ".join(unscaled) + "."
-        )
-    return out
+    out += [d.ceiling_text for d in doses if d.ceiling_text]
+    return out + list(equipment.warnings)
 
 
 _GENERATED_BY = GeneratedBy(tool="airway", version=__version__, rules_version=RULES_VERSION)
+
+
+def body_for(assessment: Assessment) -> BodySize:
+    """Her body-size scalars, from the patient section."""
+    p = assessment.patient
+    return body_size(p.weight_kg, p.height_cm, p.booking_weight_kg)
+
+
+def risk_for(assessment: Assessment) -> Risk:
+    """Her airway-difficulty estimate alone (the population model runs this)."""
+    return score(assessment, body_for(assessment))
 
 
 def build_plan(
@@ -350,13 +363,12 @@ def build_plan(
     Returns:
         The plan: risk, body size, equipment, doses, decision, steps, cautions.
     """
-    p = assessment.patient
-    body = body_size(p.weight_kg, p.height_cm, p.booking_weight_kg)
+    body = body_for(assessment)
     risk = score(assessment, body)
     expected = assessment.context.end_tidal_o2
     oxygenation = oxygenation_for(assessment, feo2=FEO2_DEFAULT if expected is None else expected)
     equipment = choose_equipment(assessment, body, risk.level, catalogue, oxygenation.short)
-    doses = compute_doses(body)
+    doses = compute_doses(body, catalogue.drugs)
     decision = decide(assessment, body)
     preparation = tuple(
         f"{f.label}: {f.prepares}" for f in risk.factors if f.present and f.prepares
@@ -382,7 +394,7 @@ def build_plan(
         steps=_steps(assessment, risk, equipment, doses, decision, oxygenation),
         preparation=preparation,
         not_assessed=risk.not_assessed,
-        warnings=tuple(_warnings(assessment, body, doses)),
+        warnings=tuple(_warnings(assessment, body, doses, equipment)),
         cautions=cautions,
     )
     filled = tuple([for_plan(c, plan) for c in checklists if "plan" in c.meta.use])

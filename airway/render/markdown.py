@@ -6,7 +6,17 @@ from ..engine.decision import DECISION_TITLE, by_category_text
 from ..engine.doses import SCALAR_LABEL, dose_text
 from ..engine.plan_model import Plan
 from ..engine.scoring import level_heading, thresholds_text
-from .text import minutes_text, per_kg_text, weight_text
+from .text import (
+    OUTWEIGHED_NOTE,
+    adds_text,
+    assumed_lines,
+    finding_label,
+    minutes_text,
+    per_kg_text,
+    range_text,
+    shown_factors,
+    weight_text,
+)
 
 
 def _esc(text: str) -> str:
@@ -45,7 +55,7 @@ def render_markdown(plan: Plan) -> str:
     if ids:
         add(" · ".join(ids))
         add("")
-    for c in plan.cautions[:2]:
+    for c in [*plan.cautions[:2], *assumed_lines(plan)]:
         add(f"> {c}")
         add(">")
     out.pop()
@@ -64,15 +74,25 @@ def render_markdown(plan: Plan) -> str:
     if r.overrides:
         add("")
         add("Forced to airway level 4 by: " + ", ".join(r.overrides) + ".")
+    if r.floors:
+        add("")
+        add("Raised to airway level 3 at least by: " + ", ".join(r.floors) + ".")
+    if range_text(r):
+        add("")
+        add(range_text(r))
     add("")
     add("| Factor | Finding | Weight | Adds | Source |")
     add("|---|---|---|---:|---|")
-    for f in r.factors:
-        if f.present:
-            add(
-                f"| {_esc(f.label)} | {_esc(f.detail or 'present')} | {weight_text(f)} | "
-                f"{f.contribution:.2f} | {_esc(f.evidence)} |"
-            )
+    shown = shown_factors(r)
+    for f in shown:
+        finding = f.detail or ("present" if f.present else "normal")
+        add(
+            f"| {_esc(finding_label(f))} | {_esc(finding)} | {weight_text(f)} | "
+            f"{adds_text(f)} | {_esc(f.evidence)} |"
+        )
+    if any(not f.counted and f.role == "difficulty" for f in shown):
+        add("")
+        add(OUTWEIGHED_NOTE)
     if plan.not_assessed:
         add("")
         add("**Not assessed:** " + ", ".join(plan.not_assessed) + ".")
@@ -143,7 +163,7 @@ def render_markdown(plan: Plan) -> str:
     add("")
     add(f"## {DECISION_TITLE}")
     add("")
-    add(f"Pre-made decision: **{d.headline}**.")
+    add(f"Pre-made decision: **{d.headline}**." + (f" {d.rule}" if d.rule else ""))
     add("")
     add("| Factor | Finding | Points | Points to |")
     add("|---|---|---:|---|")

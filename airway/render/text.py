@@ -8,14 +8,15 @@ pre-made decision and the cautions.
 
 from __future__ import annotations
 
+import math
 import textwrap
 
-from ..engine.body import BODY_FORMULA_WARNING
+from ..engine.body import BODY_FORMULA_WARNING, HEIGHT_ASSUMED_TEXT
 from ..engine.decision import DECISION_TITLE, at_a_glance, by_category_text
-from ..engine.doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text, mg_text
+from ..engine.doses import SCALAR_LABEL, SCALAR_SHORT, Dose, dose_text, mg_text, span
 from ..engine.oxygenation import Oxygenation, minutes_label
 from ..engine.plan_model import Plan
-from ..engine.scoring import FactorResult, level_heading, thresholds_text
+from ..engine.scoring import FactorResult, Risk, level_heading, thresholds_text
 from ..sources import source_label
 
 WIDTH = 80
@@ -43,21 +44,74 @@ def _heading(title: str) -> list[str]:
 
 
 def weight_text(f: FactorResult) -> str:
-    """How a factor's weight reads: 'RR 7.58', 'OR/unit 1.06', 'forces airway level 4'."""
+    """How a factor's weight reads: 'RR 7.58', 'OR/unit 1.06', 'LR- 0.63' for a normal
+    finding, 'forces airway level 4'."""
     if f.role == "override":
         return "forces airway level 4"
     if f.role == "preparation" or f.weight is None:
         return "preparation"
+    if f.present is False:
+        return f"LR- {math.exp(f.raw):.2f}"
     return f"{_KIND[f.kind]} {f.weight:g}"
+
+
+def shown_factors(r: Risk) -> list[FactorResult]:
+    """The findings a plan lists under its level: what forced it, what raised it, the
+    normal findings that lowered it, then abnormal findings outweighed in their anatomy."""
+    forcing = [f for f in r.factors if f.role == "override" and f.present]
+    counted = sorted(
+        (f for f in r.factors if f.counted and f.contribution != 0),
+        key=lambda f: -f.contribution,
+    )
+    outweighed = [f for f in r.factors if f.role == "difficulty" and f.present and not f.counted]
+    return forcing + counted + outweighed
+
+
+def finding_label(f: FactorResult) -> str:
+    """The factor's label, or for a normal finding what was found normal."""
+    return f.label if f.present is not False else f"{_NORMAL.get(f.id, f.label + ': no')}"
+
+
+_NORMAL = {
+    "thyromental_short": "Thyromental distance 6 cm or more",
+    "sternomental_short": "Sternomental distance 12.5 cm or more",
+    "mouth_opening_small": "Inter-incisor gap 4 cm or more",
+    "neck_movement_reduced": "Neck movement normal",
+    "jaw_protrusion_limited": "Jaw protrusion normal",
+    "snoring": "No history of snoring",
+}
+
+
+def adds_text(f: FactorResult) -> str:
+    """'+0.97', '-0.46', 'rule', or '0 (outweighed)' for a finding its anatomy's stronger
+    finding speaks for."""
+    if f.role == "override":
+        return "rule"
+    if not f.counted:
+        return "0"
+    return f"{f.contribution:+.2f}"
+
+
+OUTWEIGHED_NOTE = "Adds 0: a stronger finding of the same anatomy counts for it."
+
+
+def range_text(r: Risk) -> str:
+    """How far the findings not assessed could move the level; '' when they cannot."""
+    low, high = r.unassessed_range
+    if low == high == r.level:
+        return ""
+    return f"Findings not assessed could make it level {low} (all normal) to {high} (all abnormal)."
+
+
+def assumed_lines(plan: Plan) -> list[str]:
+    """What the plan assumed in place of a finding that changes doses or the level: shown
+    at the top of every format."""
+    return [HEIGHT_ASSUMED_TEXT] if plan.body.height_assumed else []
 
 
 def per_kg_text(d: Dose) -> str:
     """'1-1.5 mg/kg x total body weight 95 kg'."""
-    per = (
-        f"{d.mg_per_kg_low:g}"
-        if d.mg_per_kg_low == d.mg_per_kg_high
-        else f"{d.mg_per_kg_low:g}-{d.mg_per_kg_high:g}"
-    )
+    per = span(d.mg_per_kg_low, d.mg_per_kg_high)
     return f"{per} mg/kg x {SCALAR_LABEL[d.scalar]} {d.scalar_weight_kg:g} kg"
 
 
@@ -73,15 +127,16 @@ def _header(plan: Plan) -> list[str]:
     ]
     for caution in plan.cautions[:2]:
         lines += _wrap(caution, "  ", "! ")
+    for text in assumed_lines(plan):
+        lines += _wrap(text, "  ", "! ")
     return lines
 
 
 def _factor_lines(f: FactorResult, detail: bool) -> list[str]:
-    name = f"{f.label} ({f.detail})" if detail and f.detail else f.label
+    label = finding_label(f)
+    name = f"{label} ({f.detail})" if detail and f.detail else label
     src = f"{weight_text(f)}, {source_label(f.source, f.basis, short=True)}"
-    # An override adds nothing to the index: it shows the rule, not "+ 0.00".
-    first = "   rule  " if f.role == "override" else f"  +{f.contribution:5.2f}  "
-    return _wrap(f"{name}; {src}", " " * 9, first)
+    return _wrap(f"{name}; {src}", " " * 9, f"  {adds_text(f):>5}  ")
 
 
 def _risk(plan: Plan) -> list[str]:
@@ -90,13 +145,19 @@ def _risk(plan: Plan) -> list[str]:
     lines += _wrap(f"index {r.index:.2f} ({thresholds_text(r.thresholds)})")
     if r.overrides:
         lines += _wrap("forced to airway level 4 by: " + ", ".join(r.overrides))
-    present = [f for f in r.factors if f.present and f.role != "preparation"]
-    if not present:
-        lines.append("  no risk factor found among those assessed")
-    for f in present:
+    if r.floors:
+        lines += _wrap("raised to airway level 3 at least by: " + ", ".join(r.floors))
+    shown = shown_factors(r)
+    if not shown:
+        lines.append("  nothing assessed that moves the index")
+    for f in shown:
         lines += _factor_lines(f, detail=True)
+    if any(not f.counted and f.role == "difficulty" for f in shown):
+        lines += _wrap(OUTWEIGHED_NOTE)
     if any(f.kind == "project_ratio" and f.present for f in r.factors):
         lines += _wrap("An assumed ratio has no published figure behind it: a project rule.")
+    if range_text(r):
+        lines += _wrap(range_text(r))
     lines += _wrap(r.note)
     return lines
 
@@ -111,8 +172,10 @@ def _not_assessed(plan: Plan, most: int | None = None) -> list[str]:
         return []
     text = ", ".join(names[:most])
     if most is not None and len(names) > most:
-        text += f" and {len(names) - most} more (see the full plan)"
-    return _wrap(f"Not assessed: {text}.", "  ", "  ")
+        text += f" and {len(names) - most} more"
+    low, high = plan.risk.unassessed_range
+    moves = f" (they could make it level {low}-{high})" if low != high else ""
+    return _wrap(f"Not assessed{moves}: {text}.", "  ", "  ")
 
 
 def _bullets(title: str, entries: tuple[str, ...]) -> list[str]:
@@ -219,6 +282,8 @@ def _decision(plan: Plan) -> list[str]:
     d = plan.decision
     lines = _heading(DECISION_TITLE)
     lines += _wrap(f"Pre-made decision: {d.headline}")
+    if d.rule:
+        lines += _wrap(d.rule)
     for f in d.factors:
         sign = f"{f.points:+d}" if f.points_to != "unknown" else " ?"
         derived = " (derived)" if f.derived else ""
@@ -275,11 +340,13 @@ def _compact(plan: Plan) -> list[str]:
         lines += _wrap(
             "forced to airway level 4 by: " + "; ".join(f"{f.label}: {f.prepares}" for f in forcing)
         )
-    present = [f for f in r.factors if f.present and f.role == "difficulty"]
+    if r.floors:
+        lines += _wrap("raised to airway level 3 at least by: " + ", ".join(r.floors))
+    present = [f for f in shown_factors(r) if f.role == "difficulty"]
     for f in present:
         lines += _factor_lines(f, detail=False)
     if not present and not r.overrides:
-        lines.append("  no risk factor found among those assessed")
+        lines.append("  nothing assessed that moves the index")
     prep = [f.label for f in r.factors if f.present and f.prepares and f.role != "override"]
     if prep:
         lines += _wrap("prepare for: " + "; ".join(prep) + " (see full plan)")
@@ -304,7 +371,7 @@ def _compact(plan: Plan) -> list[str]:
         scale = f"{SCALAR_SHORT[dose.scalar]} {round(dose.scalar_weight_kg, 1):g} kg"
         lines.append(f"  {name:<14} {dose_text(dose):<33} {scale}")
     lines.append(DECISION_TITLE.upper())
-    lines += _wrap(f"Pre-made decision: {d.headline}")
+    lines += _wrap(f"Pre-made decision: {d.headline}" + (f" ({d.rule})" if d.rule else ""))
     for direction in ("proceed", "wake", "neither", "unknown"):
         names = [
             f"{f.name.split(' (')[0].lower()} {f.points:+d}"
@@ -323,7 +390,7 @@ def _compact(plan: Plan) -> list[str]:
     for n, step in enumerate(shown, 1):
         lines += _wrap(step.summary, "      ", f"  {n:>2}. ")
     for w in plan.warnings:
-        if w != BODY_FORMULA_WARNING:
+        if w not in (BODY_FORMULA_WARNING, HEIGHT_ASSUMED_TEXT):  # the latter is at the top
             lines += _wrap(w, "  ", "! ")
     lines += _wrap(plan.cautions[2], "  ", "! ")
     return lines + _in_short(plan)
@@ -342,7 +409,8 @@ def _in_short(plan: Plan) -> list[str]:
     decision = at_a_glance(d.recommendation, d.if_category).replace("if urgency", "by urgency", 1)
     lines = _wrap(
         f"IN SHORT: {level_heading(r.level).lower()}; SpO2 90% in "
-        f"{minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)} (model)",
+        f"{minutes_text(oxy.minutes_to_spo2_90, oxy.horizon_minutes)} (model)"
+        + ("; HEIGHT ASSUMED 150 cm: measure it" if plan.body.height_assumed else ""),
         "  ",
         "",
     )
@@ -384,6 +452,8 @@ def render_text(plan: Plan, compact: bool = False) -> str:
             f"input {plan.input_sha256[:8]}"
         ]
         lines += _wrap(" ".join(plan.cautions[:2]), "  ", "! ")
+        for text in assumed_lines(plan):
+            lines += _wrap(text, "  ", "! ")
         lines += _since(plan, most=6)
         lines += _compact(plan)
     else:

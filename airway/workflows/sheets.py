@@ -34,15 +34,25 @@ class BandRow(BaseModel):
     rocuronium_mg: tuple[tuple[float, float], ...]  # one range per reference height
     rocuronium_scalar: tuple[str, ...]
     sugammadex_mg: float
+    # Millilitres at the strengths the unit's catalogue stocks.
+    suxamethonium_ml: tuple[float, float] = (0.0, 0.0)
+    rocuronium_ml: tuple[tuple[float, float], ...] = ()
+    sugammadex_ml: float = 0.0
 
 
 def weight_band_rows(catalogue: Catalogue) -> tuple[BandRow, ...]:
     """One row per 10 kg from 50 to 160 kg, from the plan's own engine."""
     rows = []
+    stock = catalogue.drugs
     for kg in BAND_WEIGHTS_KG:
-        sux = compute_dose(BY_NAME["suxamethonium"], body_size(kg, None))
-        sgx = compute_dose(BY_NAME["sugammadex"], body_size(kg, None))
-        rocs = [compute_dose(BY_NAME["rocuronium"], body_size(kg, h)) for h in BAND_HEIGHTS_CM]
+        # Suxamethonium and sugammadex go on total weight: the height does not matter.
+        body = body_size(kg, BAND_HEIGHTS_CM[0])
+        sux = compute_dose(BY_NAME["suxamethonium"], body, stock.suxamethonium)
+        sgx = compute_dose(BY_NAME["sugammadex"], body, stock.sugammadex)
+        rocs = [
+            compute_dose(BY_NAME["rocuronium"], body_size(kg, h), stock.rocuronium)
+            for h in BAND_HEIGHTS_CM
+        ]
         rows.append(
             BandRow(
                 weight_kg=kg,
@@ -51,6 +61,9 @@ def weight_band_rows(catalogue: Catalogue) -> tuple[BandRow, ...]:
                 rocuronium_mg=tuple((r.dose_mg_low, r.dose_mg_high) for r in rocs),
                 rocuronium_scalar=tuple(r.scalar for r in rocs),
                 sugammadex_mg=sgx.dose_mg_low,
+                suxamethonium_ml=(sux.volume_ml_low, sux.volume_ml_high),
+                rocuronium_ml=tuple((r.volume_ml_low, r.volume_ml_high) for r in rocs),
+                sugammadex_ml=sgx.volume_ml_low,
             )
         )
     return tuple(rows)

@@ -149,7 +149,10 @@ def test_quick_with_weight_only(runner) -> None:
     lines = r.stdout.splitlines()
     assert len(lines) <= 50 and max(map(len, lines)) <= 80
     assert "Not assessed" in r.stdout and "Mallampati" in r.stdout
-    assert "Not scaled to lean or ideal weight" in r.stdout and "Rocuronium" in r.stdout
+    # No height: planned on a short assumed height, said at the top and in IN SHORT.
+    assert lines[4].startswith("! Height not measured: planned on an assumed 150 cm")
+    in_short = r.stdout[r.stdout.index("IN SHORT") :]
+    assert "HEIGHT ASSUMED 150 cm" in in_short and "Rocuronium" in r.stdout
 
 
 def test_quick_same_plan_as_file(runner, tmp_path: Path) -> None:

@@ -90,7 +90,9 @@ def test_lean_formula_range_warning() -> None:
     assert not any("Janmahasatian" in w for w in body_size(90, 165).warnings)
 
 
-def test_missing_height_gives_no_scalars_and_says_so() -> None:
+def test_missing_height_is_assumed_short_and_says_so() -> None:
+    """No height: the scalars of a 150 cm woman (BMI 98 / 1.5^2 = 43.6), and a warning."""
     b = body_size(98, None)
-    assert b.bmi is None and b.lean_weight_kg is None and b.ideal_weight_kg is None
-    assert any("Height not given" in w for w in b.warnings)
+    assert b.height_assumed and b.height_cm == 150 and b.bmi == round(98 / 1.5**2, 2)
+    assert b == body_size(98, 150)._replace(height_assumed=True, warnings=b.warnings)
+    assert any("assumed 150 cm" in w for w in b.warnings)

@@ -92,3 +92,43 @@ def test_large_breasts_open_a_short_handle() -> None:
     assert any(i.name == "Short-handled laryngoscope" for i in eq.items)
     eq = choose_equipment(make(), body_size(80, 165), 1, CATALOGUE)
     assert not any(i.name == "Short-handled laryngoscope" for i in eq.items)
+
+
+def test_small_tubes_come_with_an_aid_that_passes_them() -> None:
+    """Oedema: 6.0 / 5.5 / 5.0 mm (expert opinion). 6.0 mm still takes the usual aids
+    (Karmali & Rose 2020), so below it the plan names the shipped small-tube aid."""
+    from airway.workflows.planning import plan_for
+
+    from ..conftest import make
+
+    plan = plan_for(
+        make(preeclampsia={"status": "with_severe_features", "signs": ["voice_change"]})
+    )
+    assert plan.equipment.tracheal_tube_mm.smallest == 5.0
+    aid = next(i for i in plan.equipment.items if i.name == "Small-tube aid")
+    assert aid.open_now and "5.0 mm" in aid.why
+    routine = plan_for(make())
+    assert all(i.name != "Small-tube aid" for i in routine.equipment.items)
+
+
+def test_a_stock_that_cannot_meet_the_plan_warns_never_silently() -> None:
+    from airway.engine.plan import build_plan
+    from airway.unit.catalogue import load_catalogue
+
+    from ..conftest import make
+
+    shipped = load_catalogue()
+    adjuncts = shipped.airway_adjuncts.model_copy(
+        update={"small_tube_aid": None, "small_tube_aid_fits_from_mm": None}
+    )
+    no_small = shipped.model_copy(
+        update={"tracheal_tube_sizes_mm": (6.0, 6.5, 7.0), "airway_adjuncts": adjuncts}
+    )
+    plan = build_plan(make(preeclampsia={"signs": ["voice_change"]}), no_small)
+    assert plan.equipment.tracheal_tube_mm.smallest == 6.0
+    assert any("stocks no 5.5, 5.0 mm" in w for w in plan.warnings)
+    short = build_plan(
+        make(preeclampsia={"signs": ["voice_change"]}),
+        shipped.model_copy(update={"airway_adjuncts": adjuncts}),
+    )
+    assert any("too small for the bougie" in w for w in short.warnings)

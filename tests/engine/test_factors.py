@@ -90,8 +90,10 @@ def test_large_breasts_weigh_in_the_index_and_keep_their_preparation() -> None:
 def test_ids_unique_and_weights_positive() -> None:
     assert len(BY_ID) == len(CATALOGUE)
     for f in CATALOGUE:
-        if f.weight is not None:
-            assert f.weight > 1 and math.isfinite(f.log_weight)
+        if f.weight is not None:  # Mallampati class 1 is the reference class, ratio 1
+            assert f.weight >= 1 and math.isfinite(f.log_weight)
+        if f.weight_normal is not None:  # a normal finding lowers the index
+            assert 0 < f.weight_normal < 1
 
 
 def _all_evidence() -> list[Evidence]:
@@ -103,7 +105,8 @@ def _all_evidence() -> list[Evidence]:
                 found.append(value)
     found += [f.evidence for f in CATALOGUE]
     for d in doses.DRUGS:
-        found += [d.dose_evidence, d.scalar_evidence, d.concentration_evidence]
+        found += [d.dose_evidence, d.scalar_evidence]
+        found += [d.ceiling.evidence] if d.ceiling else []
         found += [Evidence(src, "published") for _s, src in d.alternatives_obese]
     return found
 

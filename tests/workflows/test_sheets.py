@@ -12,6 +12,7 @@ from pypdf import PdfReader
 
 from airway import plan_for
 from airway.cli import app
+from airway.engine.doses import to_step
 from airway.render.pdf.fonts import font
 from airway.render.pdf.sheets import BODY_PT_A4, render_sheet_pdf, sheet_styles
 from airway.unit.catalogue import load_catalogue
@@ -38,7 +39,8 @@ def test_weight_band_rows_equal_the_patient_plan(kg: int) -> None:
     assert row.supraglottic_size == no_height.equipment.supraglottic_size
     sux = no_height.dose("suxamethonium")
     assert row.suxamethonium_mg == (sux.dose_mg_low, sux.dose_mg_high)
-    assert row.sugammadex_mg == no_height.dose("sugammadex").dose_mg_low == 16 * kg
+    # 16 mg/kg (sugammadex label) to the nearest 100 mg (project rule)
+    assert row.sugammadex_mg == no_height.dose("sugammadex").dose_mg_low == to_step(16 * kg, 100)
     for height, (lo, hi) in zip(BAND_HEIGHTS_CM, row.rocuronium_mg, strict=True):
         p = plan_for(make(patient={"weight_kg": kg, "height_cm": height}), checklists=())
         roc = p.dose("rocuronium")

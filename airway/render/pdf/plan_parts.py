@@ -16,7 +16,14 @@ from ...engine.doses import SCALAR_LABEL, Dose
 from ...engine.plan_model import Plan, RenderedChecklist
 from ...engine.scoring import level_heading
 from ...sources import source_label
-from ..text import minutes_text, weight_text
+from ..text import (
+    adds_text,
+    assumed_lines,
+    finding_label,
+    minutes_text,
+    shown_factors,
+    weight_text,
+)
 from .fonts import font
 from .kit import (
     ACCENT,
@@ -224,7 +231,7 @@ def header_part(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list
         para("Obstetric airway plan" + (f": {label}" if label else ""), st["h1"]),
         ids,
         Spacer(0, 2),
-        para(" ".join(plan.cautions[:2]), st["caution"]),
+        para(" ".join([*plan.cautions[:2], *assumed_lines(plan)]), st["caution"]),
         Spacer(0, 3),
     ]
 
@@ -232,31 +239,42 @@ def header_part(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list
 def basis_part(plan: Plan, width: float, st: dict[str, ParagraphStyle]) -> list[object]:
     r = plan.risk
     small = st["small"]
-    present = [f for f in r.factors if f.present and f.role != "preparation"]
+    shown = shown_factors(r)
+    present = [f for f in shown if f.counted or f.role == "override"]
+    outweighed = [f for f in shown if f not in present]
     largest = max((f.contribution for f in present), default=0.0)
     bar_w = width * 0.14
-    rows: list[list[object]] = [["Factor found", "Weight", "Adds", "", "Source"]]
+    rows: list[list[object]] = [["Finding", "Weight", "Adds", "", "Source"]]
     for f in present:
         rows.append(
             [
-                para(f.label + (f" ({f.detail})" if f.detail else ""), small),
+                para(finding_label(f) + (f" ({f.detail})" if f.detail else ""), small),
                 para(weight_text(f), small),
-                "rule" if f.role == "override" else f"{f.contribution:.2f}",
+                adds_text(f),
                 _bar(f.contribution, largest, bar_w),
                 para(source_label(f.source, f.basis, short=True), small),
             ]
         )
     if not present:
-        rows.append([para("none among those assessed", small), "", "", "", ""])
+        rows.append([para("nothing assessed that moves the index", small), "", "", "", ""])
     title = f"Why airway level {r.level}: index {r.index:.2f}, each factor and its source"
     widths = [width * 0.41, width * 0.16, width * 0.07, bar_w + 4, width * 0.22 - 4]
     out: list[object] = [para(title, st["h2"]), grid(rows, widths)]
     notes = []  # the index's independence note closes the page with the other cautions
     if r.overrides:
         notes.append("<b>Forced to airway level 4 by:</b> " + escape(", ".join(r.overrides)) + ".")
+    if r.floors:
+        notes.append("<b>Raised to level 3 at least by:</b> " + escape(", ".join(r.floors)) + ".")
+    if outweighed:
+        names = ", ".join(finding_label(f) for f in outweighed)
+        notes.append(
+            f"<b>Also found</b> (a stronger finding of the same anatomy counts): {escape(names)}."
+        )
     # An assumed ratio's source column already reads "project rule".
     if plan.not_assessed:
-        notes.append("<b>Not assessed:</b> " + escape(", ".join(plan.not_assessed)) + ".")
+        low, high = r.unassessed_range
+        moves = f" (could make it level {low}-{high})" if low != high else ""
+        notes.append(f"<b>Not assessed{moves}:</b> " + escape(", ".join(plan.not_assessed)) + ".")
     notes += [f"<b>Prepare:</b> {escape(p)}." for p in plan.preparation]
     b = plan.body
     notes.append(
@@ -344,6 +362,8 @@ def decision_part(plan: Plan, st: dict[str, ParagraphStyle], dense: bool) -> lis
             st["caution"],
         ),
     ]
+    if dec.rule:
+        out.append(para(dec.rule, st["caution"]))
     for direction, heading in DIRECTIONS:
         found = [
             # "category 2: she or the baby..." reads "category 2" here: the key says the rest.
@@ -452,7 +472,10 @@ def checklist_part(
 
 def closing_part(plan: Plan, st: dict[str, ParagraphStyle]) -> list[object]:
     small = st["small"]
-    out: list[object] = [Paragraph(f"<b>Check:</b> {escape(w)}", small) for w in plan.warnings]
+    top = assumed_lines(plan)  # already at the head of the page
+    out: list[object] = [
+        Paragraph(f"<b>Check:</b> {escape(w)}", small) for w in plan.warnings if w not in top
+    ]
     # The first two cautions head the page; the rest close it.
     out.append(Paragraph("<b>Cautions:</b> " + escape(" ".join(plan.cautions[2:])), small))
     return out
