@@ -223,9 +223,10 @@ _ALL = [
     Source(
         "subramani2017",
         "Subramani 2017",
-        "Subramani Y et al. Titrated propofol induction vs. continuous infusion in "
-        "morbidly obese patients. Can J Anesth 2017 (lean-weight propofol often "
-        "insufficient; citation details from memory).",
+        "Subramani Y, Riad W, Chung F, Wong J. Optimal propofol induction dose in "
+        "morbidly obese patients: a randomized controlled trial comparing the bispectral "
+        "index and lean body weight scalar. Can J Anesth 2017 (after 2.6 mg/kg lean "
+        "weight, 18 of 30 needed more propofol).",
     ),
     Source(
         "valtonen1989",

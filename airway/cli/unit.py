@@ -221,9 +221,10 @@ def population(
     ] = 2026,
 ) -> None:
     """Level shares on a model population of women at term."""
-    from ..workflows.population import run, table
+    from ..workflows.population import chart, run, table
 
-    typer.echo(table(run(women, seed)), nl=False)
+    shares = run(women, seed)
+    typer.echo(table(shares) + "\n" + chart(shares), nl=False)
     typer.echo(
         "Invented women drawn from published prevalences (docs/method.md).\n"
         "Target: levels 3-4 between 3% and 15%, level 4 at most 4%."

@@ -52,6 +52,9 @@ def weight_text(f: FactorResult) -> str:
         return "preparation"
     if f.present is False:
         return f"LR- {math.exp(f.raw):.2f}"
+    if f.kind == "relative_risk" and f.id.startswith("mallampati_"):
+        # Centred on the average at term: the published ratio, and what it counts as.
+        return f"{_KIND[f.kind]} {f.weight:g} vs class 1, {math.exp(f.raw):.2f} vs average"
     return f"{_KIND[f.kind]} {f.weight:g}"
 
 
@@ -156,8 +159,6 @@ def _risk(plan: Plan) -> list[str]:
         lines += _wrap(OUTWEIGHED_NOTE)
     if any(f.kind == "project_ratio" and f.present for f in r.factors):
         lines += _wrap("An assumed ratio has no published figure behind it: a project rule.")
-    if range_text(r):
-        lines += _wrap(range_text(r))
     lines += _wrap(r.note)
     return lines
 

@@ -163,3 +163,20 @@ def table(shares: tuple[Shares, ...]) -> str:
         cells = "".join(f"{s.percent(n):>8.1f}%" for n in (1, 2, 3, 4))
         lines.append(f"{s.group:<16}{s.women:>7} {cells}{s.percent(3, 4):>10.1f}%")
     return "\n".join(lines) + "\n"
+
+
+CHART_WIDTH = 50
+CHART_MARKS = {1: ".", 2: "-", 3: "=", 4: "#"}
+
+
+def chart(shares: tuple[Shares, ...]) -> str:
+    """Each group's level shares as one stacked bar of CHART_WIDTH characters."""
+    key = "   ".join(f"{mark} level {n}" for n, mark in CHART_MARKS.items())
+    lines = [f"{'':<16}{key}"]
+    for s in shares:
+        bar, used = "", 0.0
+        for n, mark in CHART_MARKS.items():
+            used += s.percent(n) * CHART_WIDTH / 100
+            bar += mark * (round(used) - len(bar))
+        lines.append(f"{s.group:<16}|{bar:<{CHART_WIDTH}}|")
+    return "\n".join(lines) + "\n"

@@ -19,3 +19,16 @@ def test_level_shares_match_published_incidence() -> None:
     # Heavier women and women in labour still rank higher.
     assert shares["BMI 40 or more"].percent(3, 4) > shares["BMI < 30"].percent(3, 4)
     assert shares["in labour"].percent(3, 4) > shares["not in labour"].percent(3, 4)
+
+
+def test_method_doc_shows_the_figures_the_command_prints() -> None:
+    from pathlib import Path
+
+    from airway.workflows.population import chart, table
+
+    doc = (Path(__file__).resolve().parents[2] / "docs" / "method.md").read_text("utf-8")
+    block = doc.split("<!-- population:start -->\n```\n")[1].split("```\n<!-- population:end -->")[
+        0
+    ]
+    shares = run(women=20_000, seed=2026)
+    assert block == table(shares) + "\n" + chart(shares)
