@@ -9,9 +9,10 @@ airway device and ventilation, airway hazards), which when foreseen before
 induction already lean to waking. Each row is graded from 1 (the wake end) to
 4 (the proceed end); which finding sits in which grade is from memory of that
 table. A grade becomes points, -2, -1, +1, +2; urgency and the airway-hazard
-rows weigh double (category 2 near neutral). Three rules stand above the sum
+rows weigh double (category 2 near neutral). Four rules stand above the sum
 (project rules): maternal cardiac arrest or peri-arrest means proceed whatever
-else; two foreseen airway hazards mean wake; one foreseen hazard is never
+else; two foreseen airway hazards mean wake; without compromise (category 3 or 4)
+and with another technique possible, wake; one foreseen hazard is never
 outvoted into proceed, only into a senior call. The tool recommends; the
 clinician ticks the final decision.
 """
@@ -68,6 +69,11 @@ OEDEMA_GRADE = {
     "new_snoring": 2,
     "breathless_lying_flat": 2,
 }
+
+# Without maternal or fetal compromise (categories 3 and 4) nothing in the table weighs
+# towards proceeding but the want of an alternative: with one (regional or awake not
+# impossible), wake (project rule, the table's reading for planned surgery).
+NO_COMPROMISE = (3, 4)
 
 # The same heading in text, Markdown and PDF.
 DECISION_TITLE = "If intubation fails (decided before induction)"
@@ -207,12 +213,16 @@ def _hazards(a: Assessment) -> list[DecisionFactor]:
     return out
 
 
-def _recommend(total: int, hazards: int, arrest: bool) -> tuple[str, str]:
+def _recommend(
+    total: int, hazards: int, arrest: bool, category: int | None, alternative: bool
+) -> tuple[str, str]:
     """The recommendation and the rule above the sum that made it, if any."""
     if arrest:
         return "proceed", "Maternal cardiac arrest or peri-arrest: proceed whatever else."
     if hazards >= 2:
         return "wake", "Two airway hazards foreseen: wake, whatever the urgency."
+    if category in NO_COMPROMISE and alternative:
+        return "wake", ("Nobody is compromised and another technique remains: wake, whatever else.")
     if hazards == 1 and total > 0:
         return "balanced", "An airway hazard foreseen is never outvoted into proceeding."
     return ("proceed" if total > 0 else "wake" if total < 0 else "balanced"), ""
@@ -251,18 +261,22 @@ def decide(assessment: Assessment, body: BodySize) -> Decision:
     if arrest:
         others.insert(0, _graded("Maternal condition", "cardiac arrest or peri-arrest", 4))
     rest = sum(f.points for f in others)
+    alternative = c.regional_alternative != "impossible"
     if c.urgency_category is None:
         urgency = _graded(_URGENCY, "not known yet (clinic plan)", None)
         recommendation, rule = "decide_on_the_day", ""
         if_category = {
-            str(k): _recommend(rest + p, len(hazards), arrest)[0] for k, p in URGENCY_POINTS.items()
+            str(k): _recommend(rest + p, len(hazards), arrest, k, alternative)[0]
+            for k, p in URGENCY_POINTS.items()
         }
     else:
         cat = c.urgency_category
         urgency = _graded(_URGENCY, URGENCY_TEXT[cat], URGENCY_GRADE[cat])._replace(
             points=URGENCY_POINTS[cat]
         )
-        recommendation, rule = _recommend(rest + urgency.points, len(hazards), arrest)
+        recommendation, rule = _recommend(
+            rest + urgency.points, len(hazards), arrest, cat, alternative
+        )
         if_category = {}
     factors = (urgency, *others)
     return Decision(

@@ -134,3 +134,13 @@ def test_clinic_plan_with_hazards_wakes_in_every_category() -> None:
     d = _decide(preeclampsia={"signs": ["stridor"]}, history={"intubation": "failed"})
     assert d.recommendation == "decide_on_the_day"
     assert set(d.if_category.values()) == {"wake"}
+
+
+def test_planned_surgery_with_an_alternative_wakes_however_favourable_the_rest() -> None:
+    """Categories 3-4 sit at the wake end of the fetal row (Mushambi 2015, Table 1):
+    with a regional or awake alternative, nothing weighs towards proceeding."""
+    for category in (3, 4):
+        d = _decide(
+            context=FAVOURABLE | {"urgency_category": category, "regional_alternative": "feasible"}
+        )
+        assert d.recommendation == "wake", category
