@@ -80,6 +80,8 @@ class Sheet(BaseModel):
     contacts: tuple[Contact, ...] = ()
     month_grid: bool = False
     notes: tuple[str, ...] = ()
+    # The dose sheet: each drug's strength as the unit's catalogue lists it (mg/mL).
+    strengths: dict[str, float] = {}
 
 
 def build_sheet(
@@ -94,13 +96,17 @@ def build_sheet(
             kind=kind,
             title="Rescue drug doses and supraglottic size by weight",
             bands=weight_band_rows(catalogue),
+            strengths={
+                name: getattr(catalogue.drugs, name).mg_per_ml
+                for name in ("suxamethonium", "rocuronium", "sugammadex")
+            },
             notes=(
                 "Suxamethonium 1-1.5 mg/kg total weight; rocuronium 1-1.2 mg/kg total weight "
                 "below BMI 30 at that height, and from BMI 30 held at the dose for BMI 30 "
                 "(marked H) so that it never falls as weight rises (project rule; lean-weight "
                 "dosing per AAGBI/SOBA 2015 would give less, see her plan); sugammadex "
-                "16 mg/kg total weight for immediate reversal. Same calculation as the "
-                "patient plan.",
+                "16 mg/kg total weight for immediate reversal. Millilitres at the unit's "
+                "strengths. Same calculation as the patient plan.",
                 "Supraglottic sizes follow the unit's catalogue: makers' weight bands differ "
                 "and are not evidence-based.",
                 "A calculation aid: check every dose. Use her own plan when her height is known.",

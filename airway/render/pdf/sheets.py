@@ -27,6 +27,7 @@ from reportlab.platypus import (
 )
 
 from ... import __version__
+from ...engine.doses import span
 from ...engine.plan import RULES_VERSION
 from ...workflows.sheets import BAND_HEIGHTS_CM, Sheet
 from .fonts import font, use_fonts
@@ -210,29 +211,33 @@ def _measured_widths(
     return [n + spare * n / sum(need) for n in need], padding
 
 
-def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) -> list:
+def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float, wide: bool) -> list:
     h1, h2 = (f"{h:g}" for h in BAND_HEIGHTS_CM)
+    mg_ml = {k: f"{v:g} mg/mL" for k, v in sheet.strengths.items()}
+    sep = ", " if wide else "\n"  # a landscape page is short: milligrams beside millilitres
     header = [
         "Weight",
         "Supra-\nglottic",
-        "Suxa-\nmethonium",
-        f"Rocuronium\n{h1} cm tall",
-        f"Rocuronium\n{h2} cm tall",
-        "Sugam-\nmadex",
+        f"Suxa-\nmethonium\n{mg_ml['suxamethonium']}",
+        f"Rocuronium\n{h1} cm tall\n{mg_ml['rocuronium']}",
+        f"Rocuronium\n{h2} cm tall\n{mg_ml['rocuronium']}",
+        f"Sugam-\nmadex\n{mg_ml['sugammadex']}",
     ]
     rows: list[Sequence[object]] = [header]
     for r in sheet.bands:
         roc = [
-            f"{lo:g}-{hi:g}{' H' if scalar == 'boundary' else ''}"
-            for (lo, hi), scalar in zip(r.rocuronium_mg, r.rocuronium_scalar, strict=True)
+            f"{span(*mg)} mg{' H' if scalar == 'boundary' else ''}{sep}{span(*ml)} mL"
+            for mg, ml, scalar in zip(
+                r.rocuronium_mg, r.rocuronium_ml, r.rocuronium_scalar, strict=True
+            )
         ]
         rows.append(
             [
                 f"{r.weight_kg} kg",
                 f"size {r.supraglottic_size:g}",
-                f"{r.suxamethonium_mg[0]:g}-{r.suxamethonium_mg[1]:g}",
+                f"{span(*r.suxamethonium_mg)} mg{sep}{span(*r.suxamethonium_ml)} mL",
                 *roc,
-                f"{r.sugammadex_mg:g}",
+                f"{r.sugammadex_mg:g} mg{sep}{r.sugammadex_ml:g} mL",
             ]
         )
     widths, padding = _measured_widths(rows, width, BODY_PT_A4 * k)
@@ -247,7 +252,7 @@ def _bands(sheet: Sheet, width: float, st: dict[str, ParagraphStyle], k: float) 
             ]
         )
     )
-    notes = [para("Doses in mg. " + sheet.notes[0], st["body"])]
+    notes = [para(sheet.notes[0], st["body"])]
     notes += [para(n, st["body"]) for n in sheet.notes[1:]]
     return [table, Spacer(0, 4 * mm), *notes]
 
@@ -323,7 +328,7 @@ def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes
     doc.addPageTemplates([PageTemplate(id="sheet", frames=frames, onPage=on_page)])
     story: list[object] = [_bar(sheet.title, col_w, st), Spacer(0, 3 * mm)]
     if sheet.kind == "doses":
-        story += _bands(sheet, col_w, st, k)
+        story += _bands(sheet, col_w, st, k, wide=landscape_)
     else:
         story += _checklist(sheet, col_w, st, k)
         story += _contacts(sheet, col_w, st, k)
