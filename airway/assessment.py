@@ -7,6 +7,7 @@ them a value is refused; inside them but improbable (see
 :func:`airway.engine.plan.build_plan`) it gives a warning in the plan.
 """
 
+import typing
 import unicodedata
 from datetime import date
 from typing import Annotated, Literal
@@ -17,6 +18,7 @@ from pydantic import (
     ConfigDict,
     Field,
     StringConstraints,
+    ValidationInfo,
     field_validator,
 )
 from pydantic_core import PydanticCustomError
@@ -67,13 +69,53 @@ def _printable(value: str) -> str:
     return value
 
 
+def refused_character(text: str) -> str | None:
+    """'the control character U+001B' for the first character no printed text may hold
+    (tab, newline and carriage return aside: files are made of lines); None if clean."""
+    for ch in text:
+        if ch not in "\t\n\r" and _refused(ch):
+            control = unicodedata.category(ch) == "Cc" or ch in _BIDI_CONTROLS
+            return f"the {'control' if control else 'invisible'} character U+{ord(ch):04X}"
+    return None
+
+
+def plain_printable(value: str) -> str:
+    """The value, if it holds no control, bidirectional or invisible character."""
+    return _printable(value)
+
+
 def _printable_text(max_chars: int) -> object:
     """Plain printable text of at most ``max_chars`` characters (length checked first)."""
     return Annotated[str, StringConstraints(max_length=max_chars), AfterValidator(_printable)]
 
 
+def _kinds(annotation: object) -> set[type]:
+    """The plain types a field's annotation allows ('float | None' -> {float, NoneType})."""
+    args = typing.get_args(annotation)
+    if not args:
+        return {annotation} if isinstance(annotation, type) else set()
+    return set().union(*(_kinds(a) for a in args))
+
+
+def refuse_wrong_kind(value: object, annotation: object) -> object:
+    """A boolean is never a number and a number never a date: pydantic's lax mode would
+    take ``true`` as Mallampati class 1 or urgency category 1, and 1700000000 as a date."""
+    kinds = _kinds(annotation)
+    if isinstance(value, bool) and kinds & {int, float} and bool not in kinds:
+        raise PydanticCustomError("bool_not_number", "must be a number, not true or false")
+    if isinstance(value, int | float) and date in kinds:
+        raise PydanticCustomError("number_not_date", "must be a date written YYYY-MM-DD")
+    return value
+
+
 class _Model(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid", str_strip_whitespace=True)
+
+    @field_validator("*", mode="before")
+    @classmethod
+    def _right_kind(cls, value: object, info: ValidationInfo) -> object:
+        field = cls.model_fields[info.field_name] if info.field_name else None
+        return value if field is None else refuse_wrong_kind(value, field.annotation)
 
 
 def _num(lo: float, hi: float, unit: str, what: str) -> object:
@@ -147,7 +189,7 @@ class AirwayExam(_Model):
         float | None, _num(0, 8, "cm", "Inter-incisor gap, mouth fully open")
     ] = None
     neck_circumference_cm: Annotated[
-        float | None, _num(20, 80, "cm", "Neck circumference at the thyroid cartilage")
+        float | None, _num(25, 80, "cm", "Neck circumference at the thyroid cartilage")
     ] = None
     upper_lip_bite: Annotated[
         int | None, _num(1, 3, "class", "Upper lip bite test class (Khan 2003)")
@@ -155,6 +197,20 @@ class AirwayExam(_Model):
     neck_movement: Literal["normal", "reduced", "fixed"] | None = None
     jaw_protrusion: Literal["normal", "limited"] | None = None
     short_neck: bool | None = None
+
+    @field_validator("neck_circumference_cm", mode="before")
+    @classmethod
+    def _neck_not_inches(cls, value: object) -> object:
+        # An adult woman's neck is about 29-45 cm round (from memory): a value of 10-25
+        # is her neck in inches far more often than in centimetres.
+        if isinstance(value, int | float) and not isinstance(value, bool) and 10 <= value < 25:
+            raise PydanticCustomError(
+                "neck_in_inches",
+                "looks like inches ({value} in is {suggest} cm); give the neck "
+                "circumference in centimetres (allowed 25-80 cm)",
+                {"value": f"{float(value):g}", "suggest": round(float(value) * 2.54)},
+            )
+        return value
     receding_mandible: bool | None = None
     protruding_incisors: bool | None = None
     large_breasts: bool | None = None

@@ -5,32 +5,95 @@ a unit's TOML file (or the shipped one) into it, and the engine chooses sizes on
 from what it lists.
 """
 
+import itertools
 import math
 from typing import Annotated
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    StringConstraints,
+    field_validator,
+    model_validator,
+)
+
+from .assessment import plain_printable
 
 # A unit's names for its devices print in table cells of the plan and the trolley
 # sheets; a cell taller than a page cannot be laid out. One or two printed lines is
 # ample for a device and its sizes (project rule).
 CATALOGUE_TEXT_MAX = 160
-CatalogueText = Annotated[str, Field(min_length=1, max_length=CATALOGUE_TEXT_MAX)]
+# Printable text only: a control character, a bidirectional override or a terminal
+# escape would print as an empty box on a laminated sheet or reach the terminal raw.
+CatalogueText = Annotated[
+    str,
+    StringConstraints(min_length=1, max_length=CATALOGUE_TEXT_MAX),
+    AfterValidator(plain_printable),
+]
 
+
+def _number(value: object) -> object:
+    """A number, never a boolean nor text that looks like one."""
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        raise ValueError("must be a number")
+    return value
+
+
+# Cuffed tracheal tubes of adult airway practice, internal diameter in mm (from the
+# 4.0 mm microlaryngeal tube to 9.0 mm; common practice).
+TUBE_RANGE_MM = (4.0, 9.0)
+TubeSize = Annotated[
+    float,
+    BeforeValidator(_number),
+    Field(ge=TUBE_RANGE_MM[0], le=TUBE_RANGE_MM[1], allow_inf_nan=False),
+]
+# Adult supraglottic sizes run from 3 to 5 or 6; 1 to 6 allows the whole range
+# makers publish (common practice).
+SupraglotticSize = Annotated[float, BeforeValidator(_number), Field(ge=1, le=6)]
+Kilograms = Annotated[float, BeforeValidator(_number), Field(ge=0, le=400, allow_inf_nan=False)]
+# The weights an assessment accepts (Patient.weight_kg): the bands must cover them all.
+COVERED_KG = (30.0, 300.0)
 
 _CONFIG = ConfigDict(frozen=True, extra="forbid")
 
 
 class Band(BaseModel):
     model_config = _CONFIG
-    size: float
-    min_kg: float = Field(ge=0)
-    max_kg: float = Field(gt=0)
+    size: SupraglotticSize
+    min_kg: Kilograms
+    max_kg: Kilograms
+
+    @model_validator(mode="after")
+    def _ordered(self) -> "Band":
+        if not self.min_kg < self.max_kg:
+            raise ValueError(f"min_kg {self.min_kg:g} must be below max_kg {self.max_kg:g}")
+        return self
 
 
 class Supraglottic(BaseModel):
     model_config = _CONFIG
     device: CatalogueText
-    bands: tuple[Band, ...] = Field(min_length=1)
+    bands: tuple[Band, ...] = Field(min_length=1, max_length=12)
+
+    @model_validator(mode="after")
+    def _cover_every_weight(self) -> "Supraglottic":
+        bands = self.bands
+        for a, b in itertools.pairwise(bands):
+            if b.min_kg != a.max_kg:
+                raise ValueError(
+                    "bands must follow one another in order without gap or overlap: "
+                    f"{a.min_kg:g}-{a.max_kg:g} kg is followed by {b.min_kg:g}-{b.max_kg:g} kg"
+                )
+        lo, hi = COVERED_KG
+        if bands[0].min_kg > lo or bands[-1].max_kg <= hi:
+            raise ValueError(
+                f"bands must cover every weight from {lo:g} to {hi:g} kg "
+                f"(they run from {bands[0].min_kg:g} to {bands[-1].max_kg:g} kg)"
+            )
+        return self
 
 
 class Laryngoscopes(BaseModel):
@@ -38,9 +101,6 @@ class Laryngoscopes(BaseModel):
     videolaryngoscope: CatalogueText
     direct: CatalogueText
     short_handle: CatalogueText
-
-
-TubeSize = Annotated[float, Field(gt=2, le=10, allow_inf_nan=False)]
 
 
 class Adjuncts(BaseModel):
@@ -101,8 +161,8 @@ class Catalogue(BaseModel):
     """What a unit stocks."""
 
     model_config = _CONFIG
-    tracheal_tube_sizes_mm: tuple[float, ...] = Field(min_length=1)
-    front_of_neck_tube_mm: float
+    tracheal_tube_sizes_mm: tuple[TubeSize, ...] = Field(min_length=1, max_length=20)
+    front_of_neck_tube_mm: TubeSize
     supraglottic: Supraglottic
     laryngoscopes: Laryngoscopes
     airway_adjuncts: Adjuncts

@@ -11,6 +11,7 @@ code::
     +-- OutputExistsError                 refusing to overwrite without --force
     +-- FontMissingError                  a PDF's text the font cannot draw (render/pdf/fonts)
     +-- PdfLayoutError                    a plan that cannot be laid out (render/pdf/plan)
+    +-- SheetTooLongError                 a unit list too long for its one-page sheet (exit 2)
 
 The library never prints and never exits; the CLI decides what the user sees.
 """
@@ -33,8 +34,22 @@ class Problem(NamedTuple):
     has_value: bool = False
 
     def __str__(self) -> str:
-        got = f" (got {self.value!r})" if self.has_value else ""
+        got = f" (got {shown_value(self.value)})" if self.has_value else ""
         return f"{self.where}: {self.message}{got}"
+
+
+# An echoed value is shortened to this many characters: enough to recognise a typing
+# slip, never a whole pasted document.
+SHOWN_VALUE_MAX = 100
+# Problems listed in one message; the rest are counted.
+SHOWN_PROBLEMS_MAX = 20
+
+
+def shown_value(value: object) -> str:
+    """The value as a message may repeat it: its repr (control characters escaped),
+    shortened to SHOWN_VALUE_MAX characters."""
+    text = repr(value)
+    return text if len(text) <= SHOWN_VALUE_MAX else text[: SHOWN_VALUE_MAX - 3] + "..."
 
 
 class InputError(AirwayError, ValueError):
@@ -51,7 +66,10 @@ class InputError(AirwayError, ValueError):
         self.problems = tuple(problems)
         count = len(self.problems)
         noun = "problem" if count == 1 else "problems"
-        lines = [f"{source}: {count} {noun}"] + [f"  - {p}" for p in self.problems]
+        shown = self.problems[:SHOWN_PROBLEMS_MAX]
+        lines = [f"{source}: {count} {noun}"] + [f"  - {p}" for p in shown]
+        if count > len(shown):
+            lines.append(f"  - and {count - len(shown)} more")
         super().__init__("\n".join(lines))
 
 

@@ -10,6 +10,8 @@ names the field, the value given and what is allowed.
 from __future__ import annotations
 
 import json
+import re
+import stat
 import sys
 from collections.abc import Mapping
 from pathlib import Path
@@ -25,6 +27,18 @@ _MESSAGES = {
     "extra_forbidden": "unknown key; check its spelling",
     "missing": "required but missing",
 }
+
+
+# Keys that may hold a name, a record number or a date of birth, wherever they are written.
+_IDENTIFIER_KEY = re.compile(
+    r"name|record|number|nhs|mrn|birth|dob|identifier|patient_id|hospital_id|address|phone",
+    re.IGNORECASE,
+)
+
+
+def looks_like_identifier(key: str) -> bool:
+    """True for a key that may hold an identifier: its value is never repeated."""
+    return bool(_IDENTIFIER_KEY.search(key))
 
 
 def _where(loc: tuple[int | str, ...]) -> str:
@@ -63,18 +77,20 @@ def problems_from_validation(
     problems = []
     for err in exc.errors(include_url=False):
         kind = err["type"]
-        message = _MESSAGES.get(kind, err["msg"])
+        message = _MESSAGES.get(kind, err["msg"].removeprefix("Value error, "))
         if kind in _RANGE_ERRORS and model is not None:
             message = _field_range(model, err["loc"]) or message
         if kind == "extra_forbidden" and model is Assessment:
             message += " (see `airway schema`)"  # the schema describes assessments only
         if kind == "literal_error":
             message = "must be one of " + err.get("ctx", {}).get("expected", "the listed values")
-        # Identifiers are never echoed back: messages can end up in logs.
+        # Identifiers are never echoed back, wherever they stand: messages can end up
+        # in logs.
         has_value = (
             kind not in ("missing",)
-            and not isinstance(err.get("input"), dict)
+            and not isinstance(err.get("input"), dict | list)
             and err["loc"][:1] != ("identity",)
+            and not any(looks_like_identifier(str(part)) for part in err["loc"])
         )
         problems.append(Problem(_where(err["loc"]), message, err.get("input"), has_value))
     return problems
@@ -169,12 +185,45 @@ def is_saved_plan(data: Mapping[str, Any]) -> bool:
     return data.keys() >= SAVED_PLAN_KEYS
 
 
-def read_text_file(path: Path, error: type[InputError] = InputError) -> str:
-    """A UTF-8 text file (a leading byte-order mark dropped); ``error`` names it if not."""
+# The largest file of each kind the tool reads (docs/cli.md): far above any real one,
+# small enough that a wrong file is refused at once rather than read into memory.
+MAX_BYTES = {
+    "assessment": 1_000_000,  # a saved plan with its curve and checklists is ~60 kB
+    "unit file": 1_000_000,  # catalogue, contacts, config, one checklist
+    "clinic list": 20_000_000,  # some 100,000 rows
+    "PDF": 20_000_000,  # a printed plan is ~60 kB
+}
+
+
+def read_bounded(path: Path, kind: str, error: type[InputError] = InputError) -> bytes:
+    """The bytes of a regular file of at most MAX_BYTES[kind]; anything else (a device, a
+    pipe, a folder, a link to one, a file too large) is ``error`` at once, never a hang."""
+    limit = MAX_BYTES[kind]
     try:
-        raw = path.read_bytes()
+        info = path.stat()
+        if not stat.S_ISREG(info.st_mode):
+            raise error(
+                str(path), [Problem("(file)", "is not a regular file (a device, pipe or folder)")]
+            )
+        if info.st_size > limit:
+            raise error(
+                str(path),
+                [Problem("(file)", f"is {info.st_size:,} bytes; an {kind} is at most {limit:,}")],
+            )
+        with path.open("rb") as handle:
+            raw = handle.read(limit + 1)
     except OSError as exc:
         raise error(str(path), [Problem("(file)", exc.strerror or str(exc))]) from None
+    if len(raw) > limit:  # grew while being read
+        raise error(str(path), [Problem("(file)", f"is larger than {limit:,} bytes")])
+    return raw
+
+
+def read_text_file(
+    path: Path, error: type[InputError] = InputError, kind: str = "unit file"
+) -> str:
+    """A UTF-8 text file (a leading byte-order mark dropped); ``error`` names it if not."""
+    raw = read_bounded(path, kind, error)
     try:
         return raw.decode("utf-8").removeprefix("\ufeff")
     except UnicodeDecodeError:
@@ -202,12 +251,13 @@ def read_assessment(path: str | Path) -> Assessment:
     """Read an assessment from a ``.toml`` or ``.json`` file, or ``-`` for stdin."""
     name = str(path)
     if name == "-":
-        return parse_assessment(sys.stdin.read(), "<stdin>")
+        text = sys.stdin.read(MAX_BYTES["assessment"] + 1)
+        if len(text) > MAX_BYTES["assessment"]:
+            limit = MAX_BYTES["assessment"]
+            raise InputError(name, [Problem("(file)", f"is larger than {limit:,} bytes")])
+        return parse_assessment(text, "<stdin>")
     file = Path(path)
-    try:
-        raw = file.read_bytes()
-    except OSError as exc:
-        raise InputError(name, [Problem("(file)", exc.strerror or str(exc))]) from None
+    raw = read_bounded(file, "assessment")
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError:

@@ -314,6 +314,27 @@ def _steps(
     )
 
 
+# Distances short enough to be inches written as centimetres (project rule): the
+# plan says what they would be in centimetres rather than silently scoring them.
+INCH_LIKE_BELOW_CM = {
+    "thyromental_cm": ("Thyromental distance", 3.0),
+    "sternomental_cm": ("Sternomental distance", 8.0),
+    "mouth_opening_cm": ("Inter-incisor gap", 2.0),
+}
+
+
+def _inch_like(a: Assessment) -> list[str]:
+    out = []
+    for key, (name, below) in INCH_LIKE_BELOW_CM.items():
+        value = getattr(a.airway, key)
+        if value is not None and 0 < value < below:
+            out.append(
+                f"{name} {value:g} cm is unusually short: if it was measured in inches it is "
+                f"{value * 2.54:.1f} cm. Check it."
+            )
+    return out
+
+
 def _warnings(
     a: Assessment, body: BodySize, doses: tuple[Dose, ...], equipment: Equipment
 ) -> list[str]:
@@ -327,6 +348,7 @@ def _warnings(
         out.append(f"Gestation {p.gestation_weeks:g} weeks is beyond 42: check it.")
     if p.booking_weight_kg is not None and p.booking_weight_kg > p.weight_kg + 10:
         out.append("Booking weight is more than 10 kg above current weight: check both.")
+    out += _inch_like(a)
     if a.airway.mallampati is None:
         out.insert(0, "Mallampati not assessed: the airway level may understate the difficulty.")
     out += [d.ceiling_text for d in doses if d.ceiling_text]

@@ -42,10 +42,21 @@ def line_of(text: str, where: str) -> int | None:
     return header_line
 
 
+def _line(text: str, where: str) -> int | None:
+    """The line of a location, or of the nearest enclosing key written in the file
+    ('supraglottic.bands[0].size' is on the line of its array when written inline)."""
+    parts = re.sub(r"\[\d+\]", "", where).split(".")
+    for end in range(len(parts), 0, -1):
+        number = line_of(text, ".".join(parts[:end]))
+        if number is not None:
+            return number
+    return None
+
+
 def _with_lines(text: str, problems: list[Problem]) -> list[Problem]:
     out = []
     for p in problems:
-        number = line_of(text, p.where)
+        number = _line(text, p.where)
         out.append(p._replace(where=f"line {number}: {p.where}") if number else p)
     return out
 

@@ -13,6 +13,7 @@ from typing import Any
 
 from pydantic import ValidationError
 
+from ..assessment import refused_character
 from ..checklist import (
     ITEM_MAX_CHARS,
     TITLE_MAX_CHARS,
@@ -24,7 +25,8 @@ from ..checklist import (
     Section,
 )
 from ..engine.checklists import CONDITIONS, UNIT_VALUES, VALUES
-from ..errors import ChecklistError
+from ..errors import ChecklistError, InputError
+from ..loading import read_text_file
 
 _WHEN = re.compile(r"\{when\s+(?P<body>[^{}]*)\}\s*$")
 _LEVEL = re.compile(r"^level\s*>=\s*(?P<n>[1-4])$")
@@ -78,8 +80,24 @@ def _item(text: str, checked: bool | None, path: str, line: int) -> Item:
     return Item(text=text, line=line, condition=condition, checkbox=checked is not None)
 
 
+# Items in one checklist file: the shipped lists hold 10-25; a sheet of more than this
+# cannot keep its one-page promise in large type (project rule, measured on A4).
+ITEMS_MAX = 40
+
+
+def _clean(text: str, path: str) -> None:
+    """Refuse a character no printed sheet or terminal should receive, naming its line."""
+    for number, line in enumerate(text.splitlines(), start=1):
+        found = refused_character(line)
+        if found:
+            raise ChecklistError(
+                path, number, f"contains {found}; checklists must be plain printable text"
+            )
+
+
 def parse_checklist(text: str, path: str) -> Checklist:
     """Parse one checklist file; every error names ``path`` and the line."""
+    _clean(text, path)
     tokens = _parser().parse(text)
     meta: FrontMatter | None = None
     sections: list[Section] = []
@@ -92,6 +110,14 @@ def parse_checklist(text: str, path: str) -> Checklist:
             if not items:
                 raise ChecklistError(path, title[1], f"section {title[0]!r} has no items")
             sections.append(Section(title=title[0], line=title[1], items=tuple(items)))
+            count = sum(len(x.items) for x in sections)
+            if count > ITEMS_MAX:
+                raise ChecklistError(
+                    path,
+                    title[1],
+                    f"{count} items; at most {ITEMS_MAX} in one checklist so that its sheet "
+                    f"stays one page: cut {count - ITEMS_MAX}",
+                )
 
     for i, tok in enumerate(tokens):
         line = (tok.map[0] + 1) if tok.map else None
@@ -155,7 +181,7 @@ def load_checklists(folder: Path | None = None) -> tuple[Checklist, ...]:
             raise ChecklistError(str(folder), None, "not a folder")
         for f in sorted(folder.glob("*.md")):
             try:
-                found[f.name] = (str(f), f.read_text("utf-8"))
-            except UnicodeDecodeError:
-                raise ChecklistError(str(f), None, "is not UTF-8 text") from None
+                found[f.name] = (str(f), read_text_file(f))
+            except InputError as exc:
+                raise ChecklistError(str(f), None, exc.problems[0].message) from None
     return tuple(parse_checklist(text, name) for _key, (name, text) in sorted(found.items()))

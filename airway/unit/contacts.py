@@ -3,22 +3,37 @@
 import tomllib
 from importlib import resources
 from pathlib import Path
+from typing import Annotated
 
-from pydantic import BaseModel, ConfigDict, Field, ValidationError
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    ConfigDict,
+    Field,
+    StringConstraints,
+    ValidationError,
+)
 
+from ..assessment import plain_printable
 from ..errors import CatalogueError
 from ..loading import problems_from_validation, read_toml_file
+
+# A contact prints as one line of the sequence sheet: printable text only, and as many
+# as the sheet holds on its page (project rule).
+CONTACTS_MAX = 8
 
 
 class Contact(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
-    role: str = Field(min_length=1, max_length=80)
-    number: str = Field(default="", max_length=40)
+    role: Annotated[
+        str, StringConstraints(min_length=1, max_length=80), AfterValidator(plain_printable)
+    ]
+    number: Annotated[str, StringConstraints(max_length=40), AfterValidator(plain_printable)] = ""
 
 
 class Contacts(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
-    contact: tuple[Contact, ...] = Field(min_length=1)
+    contact: tuple[Contact, ...] = Field(min_length=1, max_length=CONTACTS_MAX)
 
 
 def load_contacts(path: Path | None = None) -> tuple[Contact, ...]:

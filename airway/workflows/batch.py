@@ -22,7 +22,7 @@ from ..checklist import Checklist
 from ..engine.plan import assessment_digest, build_plan
 from ..engine.plan_model import saved_object
 from ..errors import InputError, OutputExistsError, Problem
-from ..loading import read_text_file
+from ..loading import read_bounded, read_text_file
 from ..output import write_atomic, write_group_atomic
 from ..render.json import render_json_bytes
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
@@ -61,7 +61,7 @@ class BatchResult:
 
 def read_list_file(path: Path) -> tuple[Row, ...]:
     """The rows of a clinic list file (UTF-8, with or without a byte-order mark)."""
-    return read_clinic_list(read_text_file(path), str(path))
+    return read_clinic_list(read_text_file(path, kind="clinic list"), str(path))
 
 
 def _outputs(row: Row, pdf: bool) -> list[str]:
@@ -78,15 +78,15 @@ def _still_matches(out: Path, row: Row, pdf: bool) -> bool:
     """For resume: the row's outputs exist, are complete, and came from this row."""
     assert row.assessment is not None
     try:
-        saved = saved_object((out / f"{row.id}.json").read_bytes())
-    except OSError:
+        saved = saved_object(read_bounded(out / f"{row.id}.json", "assessment"))
+    except InputError:
         return False
     if saved is None or saved.get("input_sha256") != assessment_digest(row.assessment):
         return False
     if pdf:
         try:
-            data = (out / f"{row.id}.pdf").read_bytes()
-        except OSError:
+            data = read_bounded(out / f"{row.id}.pdf", "PDF")
+        except InputError:
             return False
         return data.startswith(b"%PDF") and data.rstrip().endswith(b"%%EOF")
     return True

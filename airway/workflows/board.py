@@ -18,6 +18,7 @@ from ..engine.oxygenation import minutes_label
 from ..engine.plan import RULES_VERSION
 from ..engine.plan_model import Plan, plan_from_data, saved_object
 from ..errors import InputError, Problem
+from ..loading import read_bounded
 
 DEFAULT_MAX_AGE_DAYS = 14  # project rule: a clinic plan older than two weeks is checked again
 SKIPPED = ("summary",)  # the clinic summary lives in the same folder
@@ -43,9 +44,9 @@ def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
         if path.stem in SKIPPED:
             continue
         try:
-            data = saved_object(path.read_bytes())
+            data = saved_object(read_bounded(path, "assessment"))
             plan = None if data is None else plan_from_data(data)
-        except (OSError, ValidationError):
+        except (InputError, ValidationError):
             plan = None
         if plan is None:
             skipped.append(f"{path.name}: not a plan this version can read; left off the board")

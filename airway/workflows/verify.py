@@ -17,7 +17,7 @@ from typing import Any
 
 from ..engine.plan import RULES_VERSION
 from ..engine.plan_model import Plan, saved_object
-from ..errors import InputError, Problem
+from ..loading import read_bounded
 
 _SUBJECT = re.compile(
     rb"airway (?P<version>[^;)]+); rules (?P<rules>[^;)]+); input sha256 (?P<sha>[0-9a-f]{64})"
@@ -116,8 +116,4 @@ def verify_file(path: Path, current: Plan) -> Verdict:
     Raises:
         InputError: the file cannot be read.
     """
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise InputError(str(path), [Problem("(file)", exc.strerror or str(exc))]) from None
-    return verify(data, current)
+    return verify(read_bounded(path, "PDF"), current)

@@ -448,8 +448,9 @@ def test_every_one_page_plan_is_set_alike(tmp_path: Path) -> None:
 def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
     """A unit's checklists with every item and heading at the longest allowed, and its
     catalogue with every name at the longest allowed, still lay out: plans at levels 1
-    and 4 on both papers, and every trolley sheet (a cell taller than a page once
-    made the plan impossible to print)."""
+    and 4 on both papers (a cell taller than a page once made the plan impossible to
+    print); a trolley sheet is one page or refused with what to cut."""
+    import io
     import re
 
     from airway.catalogue import CATALOGUE_TEXT_MAX
@@ -492,5 +493,13 @@ def test_unit_files_at_their_longest_still_print(tmp_path: Path) -> None:
         plan = plan_for(assessment, cat, lists)
         for paper in ("A4", "letter"):
             assert render_plan_pdf(plan, paper).startswith(b"%PDF")
+    # A sheet keeps its one-page promise or is refused saying how much to cut.
+    from airway.render.pdf.sheets import SheetTooLongError
+
     for kind in SHEETS:
-        assert render_sheet_pdf(build_sheet(kind, lists, cat, ())).startswith(b"%PDF")
+        try:
+            pdf = render_sheet_pdf(build_sheet(kind, lists, cat, ()))
+        except SheetTooLongError as exc:
+            assert exc.exit_code == 2 and "cut about" in str(exc) and "one page" in str(exc)
+        else:
+            assert len(PdfReader(io.BytesIO(pdf)).pages) == 1

@@ -29,6 +29,7 @@ from reportlab.platypus import (
 from ... import __version__
 from ...engine.doses import span
 from ...engine.plan import RULES_VERSION
+from ...errors import AirwayError
 from ...workflows.sheets import BAND_HEIGHTS_CM, Sheet
 from .fonts import font, use_fonts
 from .kit import MIN_FONT_PT, para
@@ -267,8 +268,20 @@ def render_sheet_pdf(sheet: Sheet, paper: str = "A4", landscape_: bool = False) 
             break
         pdf, pages = _render(sheet, paper, landscape_, k)
         if pages == 1:
-            break
-    return pdf
+            return pdf
+    items = 0 if sheet.checklist is None else sum(len(s.items) for s in sheet.checklist.sections)
+    cut = -(-items * (pages - 1) // pages) if items else 0
+    advice = f"; cut about {cut} of its {items} items" if cut else ""
+    raise SheetTooLongError(
+        f"the {sheet.kind} sheet would take {pages} pages on {paper} even in the smallest type "
+        f"({MIN_SHEET_BODY_PT:g} pt), and a laminated sheet is one page{advice}"
+    )
+
+
+class SheetTooLongError(AirwayError):
+    """A unit's lists would break a trolley sheet's one-page promise: bad input."""
+
+    exit_code = 2
 
 
 def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes, int]:
