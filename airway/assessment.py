@@ -211,6 +211,7 @@ class AirwayExam(_Model):
                 {"value": f"{float(value):g}", "suggest": round(float(value) * 2.54)},
             )
         return value
+
     receding_mandible: bool | None = None
     protruding_incisors: bool | None = None
     large_breasts: bool | None = None

@@ -9,11 +9,12 @@ file behind.
 
 from __future__ import annotations
 
+import contextlib
 import os
 import sys
 import tempfile
 import time
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from pathlib import Path
 
 from .errors import OutputExistsError, OutputPathError
@@ -38,6 +39,21 @@ def remove_stale_temporaries(dest: Path, older_than_s: float = STALE_TEMPORARY_S
             pass  # gone already, or not ours to remove
 
 
+def check_writable(dest: Path, force: bool) -> None:
+    """Refuse, before anything is written, an output that cannot be written as asked.
+
+    Raises:
+        OutputPathError: ``dest`` is a folder, or its folder does not exist.
+        OutputExistsError: ``dest`` exists and ``force`` is False.
+    """
+    if dest.is_dir():
+        raise OutputPathError(f"{dest} is a folder; give a file name")
+    if not dest.parent.is_dir():
+        raise OutputPathError(f"{dest}: there is no folder {dest.parent}")
+    if dest.exists() and not force:
+        raise OutputExistsError(str(dest))
+
+
 def write_atomic(
     path: str | Path, data: bytes, force: bool = False, sweep_stale: bool = True
 ) -> Path:
@@ -53,12 +69,7 @@ def write_atomic(
         OSError: the folder cannot be written.
     """
     dest = Path(path)
-    if dest.is_dir():
-        raise OutputPathError(f"{dest} is a folder; give a file name")
-    if not dest.parent.is_dir():
-        raise OutputPathError(f"{dest}: there is no folder {dest.parent}")
-    if dest.exists() and not force:
-        raise OutputExistsError(str(dest))
+    check_writable(dest, force)
     if sweep_stale:
         remove_stale_temporaries(dest)
     fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=dest.parent or ".")
@@ -84,8 +95,9 @@ def write_atomic(
     except BaseException as exc:
         if os.path.exists(tmp):
             os.unlink(tmp)
-        if isinstance(exc, OSError) and not exc.filename:
-            # Name the file the user asked for (a full disk says only "No space left").
+        if isinstance(exc, OSError) and exc.filename != str(dest):
+            # Name the file the user asked for, never the temporary (a full disk says
+            # only "No space left", a failed rename names the temporary).
             raise OSError(exc.errno, exc.strerror or str(exc), str(dest)) from exc
         raise
     return dest
@@ -105,13 +117,64 @@ def _sync_all(fds: list[int]) -> None:
         os.fsync(fd)
 
 
-def write_group_atomic(files: Sequence[tuple[Path, bytes]]) -> None:
+LOCK_NAME = ".airway-run.lock"
+
+
+class FolderBusyError(OutputExistsError):
+    """Another run is writing into the same output folder."""
+
+
+@contextlib.contextmanager
+def folder_lock(folder: Path) -> Iterator[None]:
+    """Hold ``folder`` for one run: a second run into it is refused (exit 2) rather than
+    mixing its files with this one's. The lock is a file holding the owner's process id;
+    one left by a run that no longer exists is taken over."""
+    lock = folder / LOCK_NAME
+    for _attempt in range(2):
+        try:
+            fd = os.open(lock, os.O_CREAT | os.O_EXCL | os.O_WRONLY, 0o644)
+        except FileExistsError:
+            if _owner_alive(lock):
+                raise FolderBusyError(
+                    str(folder),
+                    f"{folder} is being written by another airway run; wait for it to "
+                    f"finish or choose another folder (its lock is {LOCK_NAME})",
+                ) from None
+            lock.unlink(missing_ok=True)
+            continue
+        with os.fdopen(fd, "w") as handle:
+            handle.write(str(os.getpid()))
+        break
+    try:
+        yield
+    finally:
+        lock.unlink(missing_ok=True)
+
+
+def _owner_alive(lock: Path) -> bool:
+    try:
+        pid = int(lock.read_text().strip() or "0")
+    except (OSError, ValueError):
+        return False  # unreadable or half-written: treated as left behind
+    if pid <= 0:
+        return False
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True  # someone else's live process
+    return True
+
+
+def write_group_atomic(files: Sequence[tuple[Path, bytes]], tag: str = "") -> None:
     """Write several files in one step each, replacing any file of the same name.
 
     For many small files (a clinic list): every file's bytes go to a temporary in its
     destination's folder, all are flushed to disk together, and only then does each
     take its name, so a crash leaves each file either absent, as it was, or complete.
-    The caller has swept old temporaries already (see ``sweep_stale``).
+    The caller has swept old temporaries already (see ``sweep_stale``); ``tag`` marks
+    this run's temporaries as its own (``.NAME.TAG.*.tmp``).
 
     Raises:
         OSError: a folder cannot be written (naming the file).
@@ -120,7 +183,8 @@ def write_group_atomic(files: Sequence[tuple[Path, bytes]]) -> None:
     made: list[tuple[str, Path]] = []  # (temporary, destination)
     try:
         for dest, data in files:
-            fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=dest.parent)
+            prefix = f".{dest.name}.{tag}." if tag else f".{dest.name}."
+            fd, tmp = tempfile.mkstemp(prefix=prefix, suffix=".tmp", dir=dest.parent)
             open_fds.append(fd)
             made.append((tmp, dest))
             view = memoryview(data)
@@ -138,6 +202,8 @@ def write_group_atomic(files: Sequence[tuple[Path, bytes]]) -> None:
         for tmp, _dest in made:
             if os.path.exists(tmp):
                 os.unlink(tmp)
-        if isinstance(exc, OSError) and not exc.filename and made:
-            raise OSError(exc.errno, exc.strerror or str(exc), str(made[-1][1])) from exc
+        temporaries = {tmp for tmp, _dest in made}
+        if isinstance(exc, OSError) and made and (not exc.filename or exc.filename in temporaries):
+            dest = next((d for t, d in made if t == exc.filename), made[-1][1])
+            raise OSError(exc.errno, exc.strerror or str(exc), str(dest)) from exc
         raise

@@ -105,7 +105,7 @@ def test_a_special_file_on_the_board_is_left_off(tmp_path: Path) -> None:
     from airway.workflows.board import load_plans
 
     os.mkfifo(tmp_path / "pipe.json")
-    plans, skipped = load_plans(tmp_path)
+    plans, skipped, _edited = load_plans(tmp_path)
     assert plans == [] and skipped and "pipe.json" in skipped[0]
 
 
@@ -229,3 +229,121 @@ def test_an_echoed_value_is_short_and_the_message_bounded(runner, tmp_path) -> N
     js.write_text(json.dumps(many))
     r = runner.invoke(app, ["plan", str(js)])
     assert r.exit_code == 2 and "and 480 more" in r.stderr and len(r.stderr.splitlines()) < 30
+
+
+# --- 2. A saved plan is never trusted --------------------------------------------------
+
+
+def _edited_pdf(pdf: bytes, old: bytes, new: bytes) -> bytes:
+    """The PDF with one page's drawn text changed, stream re-encoded as airway writes it."""
+    import base64
+    import re
+    import zlib
+
+    def swap(m: re.Match[bytes]) -> bytes:
+        try:
+            page = zlib.decompress(base64.a85decode(m[1].strip().removesuffix(b"~>")))
+        except ValueError:  # a font stream, not a page
+            return m[0]
+        if old not in page:
+            return m[0]
+        again = base64.a85encode(zlib.compress(page.replace(old, new))) + b"~>"
+        return b"stream\n" + again + b"\nendstream"
+
+    return re.sub(rb"stream\r?\n(.*?)\s*endstream", swap, pdf, flags=re.S)
+
+
+def test_verify_reads_what_is_printed_not_only_the_metadata(tmp_path: Path) -> None:
+    from airway import plan_for
+    from airway.render.pdf.plan import render_plan_pdf
+    from airway.workflows.verify import verify
+
+    assessment = read_assessment(ROOT / "examples" / "routine-elective.toml")
+    plan = plan_for(assessment)
+    pdf = render_plan_pdf(plan)
+    assert verify(pdf, plan).matches
+    forged = _edited_pdf(pdf, b"(7.0 / 6.5 / 6.0 mm)", b"(8.0 / 7.5 / 7.0 mm)")
+    assert forged != pdf
+    verdict = verify(forged, plan)
+    assert not verdict.matches and "page 1 differs" in verdict.findings[0]
+
+
+def test_verify_refuses_a_saved_plan_with_a_duplicate_key() -> None:
+    from airway import plan_for
+    from airway.render.json import render_json
+    from airway.workflows.verify import verify
+
+    plan = plan_for(read_assessment(ROOT / "examples" / "routine-elective.toml"))
+    text = render_json(plan)
+    doubled = text.replace('"risk": {', '"risk": {"level": 4, ', 1)
+    assert not verify(doubled.encode(), plan).matches
+
+
+def test_the_board_shows_what_the_assessment_gives_not_what_the_file_claims(tmp_path) -> None:
+    from datetime import date
+
+    from airway import plan_for
+    from airway.render.json import render_json
+    from airway.workflows.board import EDITED, board_rows, load_plans
+
+    plan = plan_for(read_assessment(ROOT / "examples" / "routine-elective.toml"))
+    data = json.loads(render_json(plan))
+    assert data["risk"]["level"] == 1
+    data["risk"]["level"] = 4  # a forged claim; its own factors say level 1
+    data["equipment"]["tracheal_tube_mm"]["first"] = 8.0
+    (tmp_path / "W1.json").write_text(json.dumps(data))
+    plans, notes, edited = load_plans(tmp_path)
+    rows = board_rows(plans, date(2026, 12, 3), edited=edited)
+    assert rows[0].level == 1 and rows[0].first_tube_mm == 7.0 and EDITED in rows[0].warnings
+    assert edited == {"W1"} and "W1.json" in notes[0]
+
+
+# --- 9. The smaller promises ------------------------------------------------------------
+
+
+def test_pdf_and_output_are_all_or_nothing(runner, tmp_path: Path) -> None:
+    existing = tmp_path / "plan.json"
+    existing.write_text("mine")
+    pdf = tmp_path / "new.pdf"
+    r = runner.invoke(app, ["plan", "--demo", "--pdf", str(pdf), "-o", str(existing), "-f", "json"])
+    assert r.exit_code == 2 and not pdf.exists() and existing.read_text() == "mine"
+    r = runner.invoke(app, ["quick", "--weight-kg", "80", "--pdf", str(pdf), "-o", str(existing)])
+    assert r.exit_code == 2 and not pdf.exists()
+
+
+def test_a_disk_error_names_the_output_not_the_temporary(tmp_path: Path, monkeypatch) -> None:
+    import airway.output as output
+
+    def full(src: str, dst: str) -> None:
+        raise OSError(28, "No space left on device", src)
+
+    monkeypatch.setattr(output.os, "replace", full)
+    target = tmp_path / "plan.pdf"
+    with pytest.raises(OSError) as caught:
+        output.write_atomic(target, b"%PDF", force=True)
+    assert caught.value.filename == str(target)
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_an_empty_clinic_list_is_called_empty(runner, tmp_path: Path) -> None:
+    f = tmp_path / "list.csv"
+    f.write_text("\n")
+    r = runner.invoke(app, ["batch", str(f), "--out", str(tmp_path / "out")])
+    assert r.exit_code == 2 and "the list is empty" in r.stderr
+
+
+def test_source_date_epoch_does_not_change_the_pdf(tmp_path: Path) -> None:
+    import subprocess
+    import sys
+
+    outs = []
+    for n, env in enumerate(({}, {"SOURCE_DATE_EPOCH": "1000000000"})):
+        out = tmp_path / f"p{n}.pdf"
+        subprocess.run(
+            [sys.executable, "-m", "airway", "plan", "--demo", "--pdf", str(out)],
+            check=True,
+            capture_output=True,
+            env={**os.environ, **env},
+        )
+        outs.append(out.read_bytes())
+    assert outs[0] == outs[1]

@@ -139,6 +139,19 @@ def render(plan: "Plan", fmt: Format, compact: bool = False) -> str:
     return render_text(plan, compact=compact)
 
 
+def check_outputs(force: bool, *paths: Path | None) -> None:
+    """All or nothing: refuse before writing any output if one of them exists (without
+    --force) or two are the same file."""
+    from ..errors import OutputExistsError
+    from ..output import check_writable
+
+    named = [p for p in paths if p is not None and str(p) != "-"]
+    if len({p.resolve() for p in named}) < len(named):
+        raise OutputExistsError(str(named[0]), "--pdf and -o name the same file")
+    for path in named:
+        check_writable(path, force)
+
+
 def write_pdf(plan: "Plan", pdf: Path | None, paper: Paper, force: bool) -> None:
     """Print the plan to ``pdf`` when one is named."""
     if pdf is None:
@@ -183,6 +196,9 @@ def main_callback(
 
 def main() -> None:
     """Console-script entry point."""
+    # PDFs carry a fixed date so the same plan gives the same bytes on every machine;
+    # reportlab would stamp SOURCE_DATE_EPOCH's date instead.
+    os.environ.pop("SOURCE_DATE_EPOCH", None)
     try:
         app(prog_name="airway")
     except Exception as exc:  # bad input never gets here: it exits 2 with its message

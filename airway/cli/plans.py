@@ -24,6 +24,7 @@ from .app import (
     PdfOpt,
     alias,
     app,
+    check_outputs,
     data_format,
     emit,
     errors,
@@ -91,6 +92,7 @@ def plan(
     with errors():
         assessment = demo_assessment() if file is None else read_assessment(file)
         the_plan = plan_since(assessment, load_unit(config, catalogue, checklists), since)
+        check_outputs(force, pdf, output)
         write_pdf(the_plan, pdf, paper, force)
         if pdf is None or output is not None:
             emit(render(the_plan, fmt), output, force)
@@ -251,6 +253,7 @@ def quick(
     with errors():
         assessment = quick_assessment(**findings)
         the_plan = plan_for(assessment, load_catalogue(catalogue), () if one_screen else None)
+        check_outputs(force, pdf, output)
         write_pdf(the_plan, pdf, paper, force)
         emit(render(the_plan, fmt, compact=not full), output, force)
 

@@ -133,10 +133,18 @@ def saved_object(text: str | bytes) -> dict[str, Any] | None:
     text that is not JSON or not UTF-8, an array or a number, or nesting far too deep
     to be a plan (which the standard library's decoder meets with RecursionError)."""
     try:
-        data = json.loads(text)
-    except (ValueError, RecursionError):
+        data = json.loads(text, object_pairs_hook=_refuse_duplicates)
+    except (ValueError, RecursionError):  # a duplicate key is a ValueError too
         return None
     return data if isinstance(data, dict) else None
+
+
+def _refuse_duplicates(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    """A key given twice makes the file no plan: which value would be meant?"""
+    keys = [k for k, _ in pairs]
+    if len(set(keys)) != len(keys):
+        raise ValueError("duplicate key")
+    return dict(pairs)
 
 
 @cache

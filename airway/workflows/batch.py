@@ -19,11 +19,10 @@ from pathlib import Path
 
 from ..catalogue import Catalogue
 from ..checklist import Checklist
-from ..engine.plan import assessment_digest, build_plan
-from ..engine.plan_model import saved_object
+from ..engine.plan import build_plan
 from ..errors import InputError, OutputExistsError, Problem
 from ..loading import read_bounded, read_text_file
-from ..output import write_atomic, write_group_atomic
+from ..output import folder_lock, remove_stale_temporaries, write_atomic, write_group_atomic
 from ..render.json import render_json_bytes
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
 
@@ -64,24 +63,30 @@ def read_list_file(path: Path) -> tuple[Row, ...]:
     return read_clinic_list(read_text_file(path, kind="clinic list"), str(path))
 
 
+# This run's mark on its temporaries: a clinic-list run removes only its own.
+RUN_TAG = f"run{os.getpid()}"
+
+
 def _outputs(row: Row, pdf: bool) -> list[str]:
     return [f"{row.id}.json", *([f"{row.id}.pdf"] if pdf else [])]
 
 
-def _remove_stale_temporaries(out: Path) -> None:
-    # write_atomic names its temporaries ".<final name>.<random>.tmp".
-    for stale in out.glob(".*.tmp"):
-        stale.unlink(missing_ok=True)
+def _remove_stale_temporaries(out: Path, names: list[str]) -> None:
+    """Temporaries of this list's own outputs left by a killed run (older than
+    STALE_TEMPORARY_S); never another file, nor a temporary still being written."""
+    for name in names:
+        remove_stale_temporaries(out / name)
 
 
-def _still_matches(out: Path, row: Row, pdf: bool) -> bool:
-    """For resume: the row's outputs exist, are complete, and came from this row."""
+def _still_matches(out: Path, row: Row, pdf: bool, plan_json: bytes) -> bool:
+    """For resume: the row's outputs exist, are complete, and are exactly what the row
+    gives now (an edited value in a saved plan is replanned, not kept)."""
     assert row.assessment is not None
     try:
-        saved = saved_object(read_bounded(out / f"{row.id}.json", "assessment"))
+        saved = read_bounded(out / f"{row.id}.json", "assessment")
     except InputError:
         return False
-    if saved is None or saved.get("input_sha256") != assessment_digest(row.assessment):
+    if saved != plan_json:
         return False
     if pdf:
         try:
@@ -123,16 +128,17 @@ def _plan_rows(job: _Job, start: int, stop: int) -> list[Done]:
         assert row.assessment is not None
         plan = build_plan(row.assessment, job.catalogue, job.checklists)
         line = summary_row(row, plan)
-        if job.resume and _still_matches(job.out, row, job.pdf):
+        plan_json = render_json_bytes(plan)
+        if job.resume and _still_matches(job.out, row, job.pdf, plan_json):
             done.append((row.number, line, 0, True))
             continue
-        files.append((job.out / f"{row.id}.json", render_json_bytes(plan)))
+        files.append((job.out / f"{row.id}.json", plan_json))
         if job.pdf:
             from ..render.pdf.plan import render_plan_pdf
 
             files.append((job.out / f"{row.id}.pdf", render_plan_pdf(plan, job.paper)))
         done.append((row.number, line, 2 if job.pdf else 1, False))
-    write_group_atomic(files)
+    write_group_atomic(files, tag=RUN_TAG)
     return done
 
 
@@ -183,10 +189,28 @@ def run_batch(
     if out.exists() and not out.is_dir():
         raise InputError(str(out), [Problem("--out", "is a file; give a folder for the plans")])
     out.mkdir(parents=True, exist_ok=True)
-    _remove_stale_temporaries(out)
+    with folder_lock(out):
+        return _run_locked(
+            rows, out, catalogue, checklists, pdf, paper, force, resume, jobs, progress
+        )
+
+
+def _run_locked(
+    rows: tuple[Row, ...],
+    out: Path,
+    catalogue: Catalogue,
+    checklists: tuple[Checklist, ...],
+    pdf: bool,
+    paper: str,
+    force: bool,
+    resume: bool,
+    jobs: int | None,
+    progress: Progress | None,
+) -> BatchResult:
     names = [n for r in rows for n in _outputs(r, pdf)] + [SUMMARY_CSV]
     if pdf:
         names.append(SUMMARY_PDF)
+    _remove_stale_temporaries(out, names)
     existing = [n for n in names if (out / n).exists()]
     if existing and not (force or resume):
         raise OutputExistsError(

@@ -15,10 +15,11 @@ from pydantic import ValidationError
 
 from ..engine.decision import at_a_glance
 from ..engine.oxygenation import minutes_label
-from ..engine.plan import RULES_VERSION
+from ..engine.plan import RULES_VERSION, build_plan
 from ..engine.plan_model import Plan, plan_from_data, saved_object
 from ..errors import InputError, Problem
 from ..loading import read_bounded
+from ..unit.catalogue import load_catalogue
 
 DEFAULT_MAX_AGE_DAYS = 14  # project rule: a clinic plan older than two weeks is checked again
 SKIPPED = ("summary",)  # the clinic summary lives in the same folder
@@ -36,10 +37,32 @@ class BoardRow:
     warnings: tuple[str, ...]
 
 
-def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
-    """Every saved JSON plan in ``folder``, and a note for each file that is not one."""
+EDITED = "values edited after saving: shown as recomputed from its assessment; replan"
+
+
+def _as_it_stands(saved: Plan) -> tuple[Plan, bool]:
+    """A saved plan is never trusted: its assessment is planned again under the current
+    rules. The level, decision and minutes shown come from that; the unit's tube and
+    supraglottic sizes stay as saved unless the file's values were edited. True when a
+    plan made under the current rules no longer agrees with its own assessment."""
+    fresh = build_plan(saved.assessment, load_catalogue())
+    same_rules = saved.generated_by.rules_version == RULES_VERSION
+    edited = same_rules and (
+        saved.input_sha256 != fresh.input_sha256
+        or saved.risk != fresh.risk
+        or saved.decision != fresh.decision
+        or saved.oxygenation != fresh.oxygenation
+    )
+    shown = fresh._replace(generated_by=saved.generated_by)
+    return (shown if edited else shown._replace(equipment=saved.equipment)), edited
+
+
+def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str], set[str]]:
+    """Every saved JSON plan in ``folder`` as its assessment gives it now, a note for each
+    file that is not one or that was edited, and the names of the edited ones."""
     plans: list[tuple[str, Plan]] = []
     skipped: list[str] = []
+    edited: set[str] = set()
     for path in sorted(folder.glob("*.json")):
         if path.stem in SKIPPED:
             continue
@@ -50,13 +73,19 @@ def load_plans(folder: Path) -> tuple[list[tuple[str, Plan]], list[str]]:
             plan = None
         if plan is None:
             skipped.append(f"{path.name}: not a plan this version can read; left off the board")
-        else:
-            plans.append((path.stem, plan))
-    return plans, skipped
+            continue
+        shown, was_edited = _as_it_stands(plan)
+        if was_edited:
+            edited.add(path.stem)
+            skipped.append(f"{path.name}: {EDITED}")
+        plans.append((path.stem, shown))
+    return plans, skipped, edited
 
 
-def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow:
-    warnings = []
+def board_row(
+    name: str, plan: Plan, today: date, max_age_days: int, edited: bool = False
+) -> BoardRow:
+    warnings = [EDITED] if edited else []
     assessed = plan.assessment.assessed_on
     if assessed is None:
         warnings.append("no assessment date: reassess")
@@ -80,7 +109,10 @@ def board_row(name: str, plan: Plan, today: date, max_age_days: int) -> BoardRow
 
 
 def board_rows(
-    plans: list[tuple[str, Plan]], today: date, max_age_days: int = DEFAULT_MAX_AGE_DAYS
+    plans: list[tuple[str, Plan]],
+    today: date,
+    max_age_days: int = DEFAULT_MAX_AGE_DAYS,
+    edited: frozenset[str] | set[str] = frozenset(),
 ) -> list[BoardRow]:
     """One row per plan, highest airway level first, then by name; replaced plans last.
 
@@ -88,7 +120,7 @@ def board_rows(
     plan side by side. Every plan but the newest is marked as replaced by it, so the
     older one is not read at 3 a.m.; plans of the same date are marked to be checked.
     """
-    rows = [board_row(name, plan, today, max_age_days) for name, plan in plans]
+    rows = [board_row(name, plan, today, max_age_days, name in edited) for name, plan in plans]
     extra, replaced = _same_woman_warnings(plans)
     rows = [replace(r, warnings=r.warnings + extra.get(r.name, ())) for r in rows]
     # A replaced plan goes to the foot of the board, whatever its level.
@@ -158,8 +190,8 @@ def ward_board(folder: Path, today: date, max_age_days: int, paper: str = "A4") 
 
     if not folder.is_dir():
         raise InputError(str(folder), [Problem("(folder)", "is not a folder")])
-    plans, notes = load_plans(folder)
-    rows = board_rows(plans, today, max_age_days)
+    plans, notes, edited = load_plans(folder)
+    rows = board_rows(plans, today, max_age_days, edited)
     count = count_women(plans)
     pdf = render_board_pdf(rows, today.isoformat(), max_age_days, notes, paper, count)
     return Board(pdf=pdf, notes=tuple(notes), women=count)

@@ -74,6 +74,9 @@ def read_clinic_list(text: str, source: str) -> tuple[Row, ...]:
     except csv.Error as exc:  # a cell longer than the csv module's limit, for one
         problem = Problem(f"row {reader.line_num}", f"cannot be read as CSV ({exc})")
         raise InputError(source, [problem]) from None
+    if not any(any(cell.strip() for cell in line) for line in lines):
+        hint = "the list is empty: give a header row with an 'id' column, then a row per woman"
+        raise InputError(source, [Problem("(file)", hint)])
     header = [h.strip() for h in (lines[0] if lines else [])]
     if len(header) == 1:
         for mark, name in ((";", "semicolons"), ("\t", "tabs")):

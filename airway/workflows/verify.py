@@ -9,8 +9,10 @@ version lacks the fields added since (the contract adds fields, never renames
 them): that is said, not taken for an edit. Pure: bytes and plan in.
 """
 
+import base64
 import json
 import re
+import zlib
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -65,6 +67,60 @@ def _compare(saved: Any, now: Any, where: str, added: list[str], changed: list[s
         changed.append(where.rstrip(".") or "(the whole plan)")
 
 
+_OBJECT = re.compile(rb"(\d+) 0 obj(.*?)endobj", re.S)
+_STREAM = re.compile(rb"stream\r?\n(.*?)\s*endstream", re.S)
+PAPER_WIDTHS = {"A4": 595.2756, "letter": 612.0}
+
+
+def page_contents(pdf: bytes) -> list[bytes]:
+    """What each page draws (its content stream, decompressed), in page order: what is
+    printed, apart from the metadata. Empty when the file cannot be read this way."""
+    objects = {int(n): body for n, body in _OBJECT.findall(pdf)}
+    kids = re.search(rb"/Kids\s*\[([^\]]*)\]", pdf)
+    if kids is None:
+        return []
+    out = []
+    for page in (int(n) for n in re.findall(rb"(\d+) 0 R", kids[1])):
+        ref = re.search(rb"/Contents (\d+) 0 R", objects.get(page, b""))
+        body = objects.get(int(ref[1]), b"") if ref else b""
+        stream = _STREAM.search(body)
+        if stream is None:
+            return []
+        raw, head = stream[1], body[:200]
+        try:
+            if b"ASCII85Decode" in head:
+                raw = base64.a85decode(raw.strip().removesuffix(b"~>"))
+            out.append(zlib.decompress(raw) if b"FlateDecode" in head else raw)
+        except (ValueError, zlib.error):
+            return []
+    return out
+
+
+def _printed_differences(data: bytes, current: Plan) -> list[str]:
+    """Re-render the plan its assessment gives now on the file's paper and compare what
+    each page draws: a PDF whose page text was edited does not match its metadata."""
+    from ..render.pdf.plan import render_plan_pdf
+
+    width = re.search(rb"/MediaBox \[ 0 0 ([\d.]+)", data)
+    paper = next(
+        (p for p, w in PAPER_WIDTHS.items() if width and abs(float(width[1]) - w) < 1), "A4"
+    )
+    printed = page_contents(data)
+    expected = page_contents(render_plan_pdf(current, paper))
+    if not printed:
+        return ["its pages cannot be read: not a plan as airway prints it"]
+    if len(printed) != len(expected):
+        return [f"has {len(printed)} pages; the plan its assessment gives now has {len(expected)}"]
+    differ = [str(n) for n, (a, b) in enumerate(zip(printed, expected, strict=True), 1) if a != b]
+    if differ:
+        pages = "page " + ", ".join(differ) if len(differ) == 1 else "pages " + ", ".join(differ)
+        return [
+            f"what is printed on {pages} differs from the plan its assessment gives now "
+            "(edited after printing, or printed with other unit files)"
+        ]
+    return []
+
+
 def _listed(paths: list[str], most: int = 3) -> str:
     more = f" and {len(paths) - most} more" if len(paths) > most else ""
     return ", ".join(paths[:most]) + more
@@ -85,6 +141,8 @@ def verify(data: bytes, current: Plan) -> Verdict:
     if rules != RULES_VERSION:
         findings.append(f"made under rules {rules}; the current rules are {RULES_VERSION}: replan")
     notes = []
+    if not findings and data.startswith(b"%PDF"):
+        findings += _printed_differences(data, current)
     if not findings and not data.startswith(b"%PDF"):
         from ..render.json import render_json
 

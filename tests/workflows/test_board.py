@@ -51,7 +51,7 @@ def test_files_that_are_not_plans_are_left_off_with_a_note(runner, tmp_path: Pat
     partial = json.loads((folder / "W1.json").read_text())
     del partial["risk"]
     (folder / "partial.json").write_text(json.dumps(partial))
-    plans, skipped = load_plans(folder)
+    plans, skipped, _edited = load_plans(folder)
     assert [n for n, _ in plans] == ["W1", "W2", "W3", "W4"]
     names = {s.split(":")[0] for s in skipped}
     assert names == {
@@ -68,7 +68,7 @@ def test_files_that_are_not_plans_are_left_off_with_a_note(runner, tmp_path: Pat
 
 
 def test_rows_sorted_and_warned(tmp_path: Path) -> None:
-    plans, skipped = load_plans(_ward(tmp_path))
+    plans, skipped, _edited = load_plans(_ward(tmp_path))
     assert [n for n, _ in plans] == ["W1", "W2", "W3", "W4"]
     assert skipped == ["notes.json: not a plan this version can read; left off the board"]
     rows = board_rows(plans, date(2026, 12, 2), max_age_days=14)
@@ -105,7 +105,7 @@ def test_a_plan_dated_after_today_is_marked(tmp_path: Path) -> None:
     folder = tmp_path / "ward"
     folder.mkdir()
     _save(folder, "F1", assessed_on="2062-11-30")
-    plans, _ = load_plans(folder)
+    plans, _, _edited = load_plans(folder)
     rows = board_rows(plans, date(2026, 12, 2))
     assert rows[0].warnings == ("dated after today: check the date, reassess",)
 
@@ -140,7 +140,7 @@ def test_boards_of_every_size_up_to_a_busy_ward_print(tmp_path: Path) -> None:
                 )
             )
         )
-    plans, skipped = load_plans(folder)
+    plans, skipped, _edited = load_plans(folder)
     assert len(plans) == 45 and not skipped
     for n in range(1, 46):
         rows = board_rows(plans[:n], date(2026, 12, 2), max_age_days=14)
@@ -161,7 +161,7 @@ def test_a_womans_older_plan_is_marked_replaced_by_her_newer_one(runner, tmp_pat
     _save(folder, "T1", identity=twin, assessed_on="2026-11-29")
     _save(folder, "T2", identity=twin, assessed_on="2026-11-29")
     _save(folder, "other", assessed_on="2026-11-29")
-    plans, _ = load_plans(folder)
+    plans, _, _edited = load_plans(folder)
     rows = board_rows(plans, date(2026, 12, 2), max_age_days=14)
     assert rows[-1].name == "clinic"  # replaced: at the foot, whatever its level
     by = {r.name: r for r in rows}

@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import os
+import time
+
 import json
 from pathlib import Path
 
@@ -187,7 +190,10 @@ def test_rerun_refused_force_replaces_resume_keeps_and_redoes_changed(runner, tm
     r = runner.invoke(app, ["batch", str(f), "--out", str(out)])
     assert r.exit_code == 2 and "--force" in r.stderr and "--resume" in r.stderr
     (out / "A2.json").write_text('{"truncated')  # as if killed mid-write by another tool
-    (out / ".A1.json.abc123.tmp").write_text("left by a killed run")
+    stale = out / ".A1.json.abc123.tmp"
+    stale.write_text("left by a killed run")
+    old = time.time() - 600
+    os.utime(stale, (old, old))
     f.write_text(HEADER + "A1,,80,165,1,\nA2,,90,160,3,\n")  # A2 reassessed
     r = runner.invoke(app, ["batch", str(f), "--out", str(out), "--resume"])
     assert r.exit_code == 0 and "1 kept" in r.stderr
@@ -278,3 +284,49 @@ def test_column_reference_is_a_table_of_three_columns_in_every_row() -> None:
     rows = {line.split("|")[1].strip(" `"): line for line in column_reference().splitlines()}
     labour = rows["patient.in_labour"]
     assert "yes \\| no" in labour and "In labour now" in labour
+
+
+def test_a_run_removes_only_its_own_stale_temporaries(runner, tmp_path: Path) -> None:
+    """Another run's fresh temporary and a user's own '.notes.tmp' are left alone."""
+    f = tmp_path / "list.csv"
+    f.write_text(HEADER + "A1,,80,165,1,\n")
+    out = tmp_path / "out"
+    out.mkdir()
+    young = out / ".A1.json.other.tmp"
+    young.write_text("another run, still writing")
+    mine = out / ".notes.tmp"
+    mine.write_text("the user's own")
+    old = time.time() - 600
+    os.utime(mine, (old, old))
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out)]).exit_code == 0
+    assert young.exists() and mine.exists()
+
+
+def test_a_second_run_into_a_busy_folder_is_refused(runner, tmp_path: Path) -> None:
+    """One run, one owner: a live run's lock refuses the second (exit 2); a lock left by
+    a process that is gone is taken over."""
+    from airway.output import LOCK_NAME
+
+    f = tmp_path / "list.csv"
+    f.write_text(HEADER + "A1,,80,165,1,\n")
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / LOCK_NAME).write_text(str(os.getppid()))  # a live process holds it
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out)])
+    assert r.exit_code == 2 and "another airway run" in r.stderr
+    assert not (out / "A1.json").exists()
+    (out / LOCK_NAME).write_text("999999999")  # no such process
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out)]).exit_code == 0
+    assert (out / "A1.json").exists() and not (out / LOCK_NAME).exists()
+
+
+def test_resume_replans_a_saved_plan_whose_values_were_edited(runner, tmp_path: Path) -> None:
+    f = tmp_path / "list.csv"
+    f.write_text(HEADER + "A1,,80,165,1,\n")
+    out = tmp_path / "out"
+    assert runner.invoke(app, ["batch", str(f), "--out", str(out)]).exit_code == 0
+    good = (out / "A1.json").read_bytes()
+    (out / "A1.json").write_bytes(good.replace(b'"level": 1', b'"level": 4', 1))
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out), "--resume"])
+    assert r.exit_code == 0 and "0 kept" in r.stderr
+    assert (out / "A1.json").read_bytes() == good
