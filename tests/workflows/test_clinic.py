@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
+import json
 import os
 import time
-
-import json
 from pathlib import Path
 
 import pytest
