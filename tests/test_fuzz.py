@@ -197,3 +197,74 @@ def test_every_valid_assessment_prints_within_its_pages(data, paper) -> None:
     plan = plan_for(assessment_from_mapping(data))
     pages = len(PdfReader(io.BytesIO(render_plan_pdf(plan, paper))).pages)
     assert pages <= (1 if plan.risk.level <= 2 and paper == "A4" else 2)
+
+
+_SHIPPED_EQUIPMENT = (
+    __import__("pathlib").Path(__file__).resolve().parent.parent / "airway/data/equipment.toml"
+).read_text("utf-8")
+_CATALOGUE_KEYS = [
+    "tracheal_tube_sizes_mm",
+    "front_of_neck_tube_mm",
+    "bougie_fits_from_mm",
+    "small_tube_aid_fits_from_mm",
+    "mg_per_ml",
+    "bougie",
+    "device",
+]
+toml_values = st.one_of(
+    st.integers(-(10**6), 10**6).map(str),
+    st.floats(allow_nan=False, allow_infinity=False, width=32).map(repr),
+    st.sampled_from(["true", "false", "nan", "inf", "[]", "[0]", "[1, 2.5, 20]", '"x"', '""']),
+    st.text(max_size=20).map(json.dumps),
+)
+
+
+@settings(max_examples=300 * SCALE, deadline=None)
+@given(key=st.sampled_from(_CATALOGUE_KEYS), value=toml_values)
+def test_unit_catalogue_values(key: str, value: str) -> None:
+    """Any value for a catalogue key: the catalogue loads, or it is refused as bad input
+    naming a line; a plan made with a catalogue that loads never fails."""
+    import re
+    import tempfile
+    from pathlib import Path
+
+    from airway.errors import CatalogueError
+    from airway.unit.catalogue import load_catalogue
+
+    line = f"{key} = {value}"
+    text = re.sub(rf"(?m)^{key} = .*$", lambda _m: line, _SHIPPED_EQUIPMENT, count=1)
+    with tempfile.TemporaryDirectory() as folder:
+        path = Path(folder) / "equipment.toml"
+        path.write_text(text, "utf-8")
+        try:
+            catalogue = load_catalogue(path)
+        except CatalogueError:
+            return
+    assert plan_for(parse_assessment("[patient]\nweight_kg = 80\n", "a.toml", "toml"), catalogue)
+
+
+@settings(max_examples=200 * SCALE, deadline=None)
+@given(
+    path=st.lists(
+        st.sampled_from(["risk", "level", "equipment", "doses", "0", "x"]), min_size=1, max_size=3
+    ),
+    value=json_values,
+)
+def test_saved_plans_with_any_value_changed(path: list[str], value: object) -> None:
+    """A saved plan with any value replaced reads back as a plan (and then matches or not)
+    or is refused; never a traceback."""
+    from airway.render.json import render_json
+    from airway.workflows.verify import verify
+
+    plan = plan_for(parse_assessment("[patient]\nweight_kg = 80\n", "a.toml", "toml"))
+    data = json.loads(render_json(plan))
+    node = data
+    for key in path[:-1]:
+        nxt = node.get(key) if isinstance(node, dict) else None
+        if not isinstance(nxt, dict):
+            break
+        node = nxt
+    if isinstance(node, dict):
+        node[path[-1]] = value
+    verdict = verify(json.dumps(data).encode(), plan)
+    assert isinstance(verdict.matches, bool)
