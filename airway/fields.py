@@ -25,6 +25,7 @@ Kind = Literal["number", "integer", "yes/no", "choice", "choices", "text", "date
 SECTIONS = ("identity", "patient", "airway", "history", "preeclampsia", "context")
 LIST_SEPARATOR = ";"
 NOT_ASSESSED = ""  # an empty cell or a blank answer
+ROMAN = {"I": 1, "II": 2, "III": 3, "IV": 4}
 YES = ("yes", "y", "true", "1")
 NO = ("no", "n", "false", "0")
 
@@ -180,6 +181,12 @@ def parse_text(spec: FieldSpec, text: str) -> object:
         except ValueError:
             raise ValueError(f"not a number; {spec.allowed()}") from None
     if spec.kind == "integer":
+        # Classes are often written in Roman numerals ("Mallampati III"), with or
+        # without the word "class" or "category".
+        word = re.sub(r"^(class|category|cat\.?)\s*", "", text.lower()).strip()
+        if word.upper() in ROMAN:
+            return ROMAN[word.upper()]
+        text = word or text
         try:
             return int(text)
         except ValueError:

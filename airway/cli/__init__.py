@@ -2,10 +2,11 @@
 
 :mod:`airway.cli.app` holds the app, the shared options and the mapping of errors
 to exit codes; the commands live in :mod:`airway.cli.plans` (one woman) and
-:mod:`airway.cli.unit` (clinic lists, the ward board, trolley sheets, reference).
+:mod:`airway.cli.unit` (clinic lists, the ward board, trolley sheets, reference) and
+:mod:`airway.cli.serve` (the web application).
 """
 
-from . import plans, unit
+from . import plans, serve, unit
 from .app import app, main
 
-__all__ = ["app", "main", "plans", "unit"]
+__all__ = ["app", "main", "plans", "serve", "unit"]

@@ -1,0 +1,258 @@
+"""The web application: pages for the clinic and the ward, and a JSON API, on the
+same engine and renderers as the command line."""
+
+from pathlib import Path
+from typing import Any
+
+from fastapi import FastAPI, Request
+from fastapi.responses import HTMLResponse, JSONResponse, RedirectResponse, Response
+from fastapi.staticfiles import StaticFiles
+from fastapi.templating import Jinja2Templates
+
+from ..assessment import Assessment
+from ..engine.plan_model import Plan
+from ..engine.scoring import level_heading
+from ..errors import AirwayError, InputError, OutputExistsError
+from ..render.json import render_json_bytes
+from ..render.markdown import render_markdown
+from ..render.pdf.plan import render_plan_pdf
+from ..render.text import shown_factors
+from ..workflows.planning import plan_for
+from .form import groups, read_form
+from .security import BODY_LIMIT_BYTES, COOKIE, HEADERS, Settings, token_ok
+
+HERE = Path(__file__).parent
+PDF = "application/pdf"
+
+
+def _problems(exc: InputError) -> list[dict[str, str]]:
+    return [{"field": p.where, "message": str(p).split(": ", 1)[-1]} for p in exc.problems]
+
+
+def _html(markdown: str) -> str:
+    from markdown_it import MarkdownIt
+
+    return MarkdownIt("commonmark", {"html": False}).enable("table").render(markdown)
+
+
+def create_app(settings: Settings) -> FastAPI:
+    """The application for one start of the server."""
+    app = FastAPI(title="airway", docs_url=None, redoc_url=None, openapi_url="/api/openapi.json")
+    pages = Jinja2Templates(directory=HERE / "templates")
+    app.mount("/static", StaticFiles(directory=HERE / "static"), name="static")
+    app.add_exception_handler(_TooLarge, _too_large)
+    app.add_exception_handler(_Forbidden, _forbidden)
+
+    @app.middleware("http")
+    async def guard(request: Request, call_next: Any) -> Response:
+        response = await _guarded(request, call_next, settings)
+        for name, value in HEADERS.items():
+            response.headers.setdefault(name, value)
+        return response
+
+    def page(request: Request, name: str, status: int = 200, **context: Any) -> HTMLResponse:
+        context |= {"csrf": settings.csrf, "saving": settings.plans is not None}
+        return pages.TemplateResponse(request, name, context, status_code=status)
+
+    @app.get("/", response_class=HTMLResponse)
+    def form_page(request: Request) -> HTMLResponse:
+        return page(request, "form.html", sections=groups({}, (), {}))
+
+    @app.post("/plan", response_class=HTMLResponse)
+    async def plan_page(request: Request) -> HTMLResponse:
+        form = await _form(request, settings)
+        values = {k: v for k, v in form.items() if isinstance(v, str)}
+        signs = tuple(str(v) for v in form.getlist("preeclampsia.signs"))
+        assessment, errors = read_form(values, signs)
+        if assessment is None:
+            sections = groups(values, signs, errors)
+            return page(request, "form.html", 422, sections=sections, errors=errors)
+        plan = plan_for(assessment)
+        return page(
+            request,
+            "plan.html",
+            plan=plan,
+            body=_html(render_markdown(plan)),
+            assessment=assessment.model_dump_json(exclude_none=True),
+        )
+
+    @app.post("/api/level")
+    async def live_level(request: Request) -> JSONResponse:
+        form = await _form(request, settings, check_csrf=False)
+        values = {k: v for k, v in form.items() if isinstance(v, str)}
+        signs = tuple(str(v) for v in form.getlist("preeclampsia.signs"))
+        assessment, errors = read_form(values, signs)
+        if assessment is None:
+            return JSONResponse({"heading": "", "problems": len(errors)})
+        risk = plan_for(assessment, checklists=()).risk
+        drivers = [
+            f.label for f in shown_factors(risk) if f.contribution > 0 or f.role == "override"
+        ]
+        return JSONResponse({"heading": level_heading(risk.level), "drivers": drivers[:4]})
+
+    @app.post("/api/plan")
+    async def api_plan(request: Request) -> Response:
+        plan = _plan_from_json(await _body(request, "api"))
+        if isinstance(plan, JSONResponse):
+            return plan
+        return Response(render_json_bytes(plan), media_type="application/json")
+
+    @app.post("/api/plan.pdf")
+    async def api_plan_pdf(request: Request) -> Response:
+        plan = _plan_from_json(await _body(request, "api"))
+        if isinstance(plan, JSONResponse):
+            return plan
+        return Response(render_plan_pdf(plan, "A4"), media_type=PDF)
+
+    @app.post("/download/{fmt}")
+    async def download(request: Request, fmt: str) -> Response:
+        form = await _form(request, settings)
+        plan = _plan_from_json(str(form.get("assessment", "")).encode())
+        if isinstance(plan, JSONResponse):
+            return plan
+        name = f"airway-plan-{plan.input_sha256[:12]}"
+        made = {
+            "pdf": (lambda: render_plan_pdf(plan, "A4"), PDF, "pdf"),
+            "markdown": (lambda: render_markdown(plan).encode(), "text/markdown", "md"),
+            "json": (lambda: render_json_bytes(plan), "application/json", "json"),
+        }.get(fmt)
+        if made is None:
+            return JSONResponse({"problems": [{"field": "format", "message": "unknown"}]}, 404)
+        render, media, suffix = made
+        disposition = f'attachment; filename="{name}.{suffix}"'
+        return Response(render(), media_type=media, headers={"Content-Disposition": disposition})
+
+    @app.post("/save", response_class=HTMLResponse)
+    async def save(request: Request) -> HTMLResponse:
+        from ..output import write_atomic
+
+        form = await _form(request, settings)
+        plan = _plan_from_json(str(form.get("assessment", "")).encode())
+        if settings.plans is None or isinstance(plan, JSONResponse):
+            return page(request, "message.html", 422, text="This plan could not be saved.")
+        target = settings.plans / f"plan-{plan.input_sha256[:12]}.json"
+        try:
+            write_atomic(target, render_json_bytes(plan))
+            text = f"Saved as {target.name} in the plans folder."
+        except OutputExistsError:
+            text = f"Already saved as {target.name}: the same assessment gives the same plan."
+        return page(request, "message.html", text=text)
+
+    @app.get("/board", response_class=HTMLResponse)
+    def board(request: Request) -> HTMLResponse:
+        from datetime import date
+
+        from ..workflows.board import board_rows, count_women, load_plans
+
+        if settings.plans is None:
+            return page(
+                request,
+                "board.html",
+                rows=[],
+                notes=["No plans folder: start with --plans DIR."],
+                women=0,
+            )
+        plans, notes, edited = load_plans(settings.plans)
+        rows = board_rows(plans, date.today(), edited=edited)
+        return page(request, "board.html", rows=rows, notes=notes, women=count_women(plans))
+
+    @app.get("/sheets", response_class=HTMLResponse)
+    def sheets_page(request: Request) -> HTMLResponse:
+        from ..workflows.sheets import SHEETS
+
+        return page(request, "sheets.html", kinds=SHEETS)
+
+    @app.post("/sheets")
+    async def sheet(request: Request) -> Response:
+        from ..unit.config import load_unit
+        from ..workflows.sheets import SHEETS, sheet_pdf
+
+        form = await _form(request, settings)
+        kind, paper = str(form.get("kind", "")), str(form.get("paper", "A4"))
+        if kind not in SHEETS or paper not in ("A4", "A3", "letter", "tabloid"):
+            return page(request, "message.html", 422, text="Choose a sheet and a paper.")
+        try:
+            pdf = sheet_pdf(kind, load_unit(None, None, None), None, paper, False)
+        except AirwayError as exc:
+            return page(request, "message.html", 422, text=str(exc))
+        disposition = f'attachment; filename="airway-{kind}-{paper}.pdf"'
+        return Response(pdf, media_type=PDF, headers={"Content-Disposition": disposition})
+
+    return app
+
+
+def _plan_from_json(body: bytes) -> Plan | JSONResponse:
+    """The plan for a JSON assessment, or a 422 listing every problem by field."""
+    from ..loading import parse_assessment
+
+    try:
+        assessment: Assessment = parse_assessment(body.decode("utf-8"), "request", "json")
+    except UnicodeDecodeError:
+        return JSONResponse({"problems": [{"field": "(body)", "message": "not UTF-8"}]}, 422)
+    except InputError as exc:
+        return JSONResponse({"problems": _problems(exc)}, 422)
+    return plan_for(assessment)
+
+
+async def _body(request: Request, kind: str) -> bytes:
+    body = await request.body()
+    if len(body) > BODY_LIMIT_BYTES[kind]:
+        raise _TooLarge()
+    return body
+
+
+class _TooLarge(Exception):
+    pass
+
+
+async def _form(request: Request, settings: Settings, check_csrf: bool = True) -> Any:
+    form = await request.form()
+    if check_csrf and not _same(str(form.get("csrf", "")), settings.csrf):
+        raise _Forbidden()
+    return form
+
+
+class _Forbidden(Exception):
+    pass
+
+
+def _same(a: str, b: str) -> bool:
+    import hmac
+
+    return hmac.compare_digest(a.encode(), b.encode())
+
+
+async def _guarded(request: Request, call_next: Any, settings: Settings) -> Response:
+    """Host, then token, then body size; the handler's own refusals mapped to status."""
+    if request.headers.get("host", "") not in settings.allowed_hosts():
+        return Response("unknown host\n", 421, media_type="text/plain")
+    query_token = request.query_params.get("token")
+    if query_token is not None:
+        if not token_ok(query_token, settings):
+            return Response("wrong or missing token\n", 401, media_type="text/plain")
+        redirect = RedirectResponse(request.url.path, 303)
+        redirect.set_cookie(COOKIE, settings.token, httponly=True, samesite="strict", path="/")
+        return redirect
+    bearer = request.headers.get("authorization", "").removeprefix("Bearer ").strip() or None
+    if not (token_ok(request.cookies.get(COOKIE), settings) or token_ok(bearer, settings)):
+        return Response(
+            "open the address airway serve printed (it carries the access token)\n",
+            401,
+            media_type="text/plain",
+        )
+    length = request.headers.get("content-length")
+    limit = BODY_LIMIT_BYTES[
+        "upload" if "multipart" in request.headers.get("content-type", "") else "api"
+    ]
+    if length is not None and (not length.isdigit() or int(length) > limit):
+        return Response(f"request body larger than {limit:,} bytes\n", 413, media_type="text/plain")
+    response: Response = await call_next(request)
+    return response
+
+
+def _too_large(_request: Request, _exc: Exception) -> Response:
+    return Response("request body too large\n", 413, media_type="text/plain")
+
+
+def _forbidden(_request: Request, _exc: Exception) -> Response:
+    return Response("missing or wrong form token: reload the page\n", 403, media_type="text/plain")

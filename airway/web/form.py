@@ -1,0 +1,79 @@
+"""The assessment form: its fields drawn from the assessment model, its answers read
+with the same parser as clinic-list cells and guided entry (:mod:`airway.fields`)."""
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+from ..assessment import Assessment
+from ..errors import InputError
+from ..fields import BY_PATH, LABELS, SECTIONS, FieldSpec, field_specs, nest, parse_text
+from ..loading import assessment_from_mapping
+
+SECTION_TITLES = {
+    "identity": "Her identifiers (printed on her own plan only)",
+    "patient": "Patient",
+    "airway": "Mouth and neck",
+    "history": "History",
+    "preeclampsia": "Pre-eclampsia",
+    "context": "Operation and team",
+    "": "This assessment",
+}
+NOT_ASSESSED_LABEL = "not assessed"
+
+
+@dataclass(frozen=True)
+class Field:
+    spec: FieldSpec
+    label: str
+    value: str  # as typed, kept through an error
+    chosen: tuple[str, ...]  # for the oedema signs
+    error: str
+
+
+def _label(spec: FieldSpec) -> str:
+    return LABELS.get(spec.path, spec.name.replace("_", " ").capitalize())
+
+
+def groups(
+    values: Mapping[str, str], chosen: tuple[str, ...], errors: Mapping[str, str]
+) -> list[tuple[str, list[Field]]]:
+    """The form's fields by section, in examination order, identity first."""
+    out: list[tuple[str, list[Field]]] = []
+    for section in (*SECTIONS, ""):
+        fields = [
+            Field(
+                spec=s,
+                label=_label(s),
+                value=values.get(s.path, ""),
+                chosen=chosen if s.kind == "choices" else (),
+                error=errors.get(s.path, ""),
+            )
+            for s in field_specs()
+            if s.section == section
+        ]
+        if fields:
+            out.append((SECTION_TITLES[section], fields))
+    return out
+
+
+def read_form(
+    form: Mapping[str, str], signs: tuple[str, ...]
+) -> tuple[Assessment | None, dict[str, str]]:
+    """The assessment the form's answers give, or every problem by field path."""
+    values: dict[str, object] = {}
+    errors: dict[str, str] = {}
+    for path, spec in BY_PATH.items():
+        if spec.kind == "choices":
+            values[path] = list(signs) or None
+            continue
+        text = form.get(path, "")
+        try:
+            values[path] = parse_text(spec, text)
+        except ValueError as exc:
+            errors[path] = str(exc)
+    if errors:
+        return None, errors
+    try:
+        return assessment_from_mapping(nest(values), "form"), {}
+    except InputError as exc:
+        return None, {p.where: p.message for p in exc.problems}

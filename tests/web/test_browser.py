@@ -1,0 +1,95 @@
+"""The web application in a real browser: Debian's Chromium driven by Playwright.
+
+Playwright's own browser download cannot work on these machines, so the system
+Chromium is launched by path; the test is skipped where there is none.
+"""
+
+from __future__ import annotations
+
+import shutil
+import socket
+import threading
+import time
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("playwright")
+uvicorn = pytest.importorskip("uvicorn")
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+pytestmark = pytest.mark.skipif(CHROMIUM is None, reason="no system Chromium")
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return int(s.getsockname()[1])
+
+
+@pytest.fixture
+def server(tmp_path: Path):  # type: ignore[no-untyped-def]
+    from airway.web.app import create_app
+    from airway.web.security import Settings
+
+    settings = Settings(port=_free_port(), plans=tmp_path)
+    config = uvicorn.Config(
+        create_app(settings),
+        host="127.0.0.1",
+        port=settings.port,
+        log_level="warning",
+        lifespan="off",
+    )
+    srv = uvicorn.Server(config)
+    thread = threading.Thread(target=srv.run, daemon=True)
+    thread.start()
+    for _ in range(100):
+        if srv.started:
+            break
+        time.sleep(0.05)
+    yield settings
+    srv.should_exit = True
+    thread.join(5)
+
+
+def test_a_clinic_doctor_enters_a_woman_with_the_keyboard_and_gets_her_plan(
+    server, tmp_path
+) -> None:
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=CHROMIUM, args=["--no-sandbox"])
+        page = browser.new_page()
+        page.goto(server.url())
+        assert page.url.endswith("/") and "token" not in page.url  # the token became a cookie
+        page.locator("#f-identity-name").focus()
+        page.keyboard.type("Test Woman")
+        for _ in range(3):  # record number, date of birth, then weight
+            page.keyboard.press("Tab")
+        page.keyboard.type("128 kg")
+        page.keyboard.press("Tab")
+        page.keyboard.type("160")
+        page.fill("#f-airway-mallampati", "IV")  # Roman, as written in the notes
+        page.select_option("#f-history-intubation", "difficult")
+        page.wait_for_function(
+            "document.getElementById('live').textContent.includes('Airway level 4')"
+        )
+        page.screenshot(path=str(tmp_path / "form.png"), full_page=True)
+        page.get_by_role("button", name="Make the plan").click()
+        page.wait_for_load_state()
+        assert "Airway level 4 of 4" in page.content()
+        assert "Test Woman" in page.content()
+        page.screenshot(path=str(tmp_path / "plan.png"), full_page=True)
+        with page.expect_download() as got:
+            page.get_by_role("button", name="Download PDF").click()
+        assert Path(got.value.path()).read_bytes().startswith(b"%PDF")
+        page.get_by_role("button", name="Save to the plans folder").click()
+        page.wait_for_load_state()
+        assert "Saved as" in page.content()
+        page.goto(f"http://127.0.0.1:{server.port}/board")
+        assert "4 of 4" in page.content()
+        page.screenshot(path=str(tmp_path / "board.png"), full_page=True)
+        browser.close()
+    shots = Path("/tmp/airway-screens")
+    shots.mkdir(exist_ok=True)
+    for name in ("form.png", "plan.png", "board.png"):
+        shutil.copy(tmp_path / name, shots / name)

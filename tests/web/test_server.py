@@ -1,0 +1,155 @@
+"""``airway serve`` over HTTP: every security rule, and the API giving exactly what the
+command line gives."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("fastapi")
+from fastapi.testclient import TestClient
+
+from airway.cli import app as cli
+from airway.web.app import create_app
+from airway.web.security import COOKIE, Settings, settings_for
+
+from ..conftest import EXAMPLES
+
+BASE = "http://127.0.0.1:8750"
+
+
+def _client(tmp_path: Path | None = None, signed_in: bool = True) -> tuple[TestClient, Settings]:
+    settings = Settings(plans=tmp_path)
+    client = TestClient(create_app(settings), base_url=BASE)
+    if signed_in:
+        r = client.get(f"/?token={settings.token}", follow_redirects=False)
+        assert r.status_code == 303 and COOKIE in r.headers["set-cookie"]
+        assert (
+            "HttpOnly" in r.headers["set-cookie"] and "SameSite=strict" in r.headers["set-cookie"]
+        )
+    return client, settings
+
+
+def test_without_the_token_every_page_and_the_api_are_refused() -> None:
+    client, settings = _client(signed_in=False)
+    for path in ("/", "/board", "/sheets", "/static/style.css", "/api/openapi.json"):
+        assert client.get(path).status_code == 401, path
+    assert client.post("/api/plan", json={"patient": {"weight_kg": 80}}).status_code == 401
+    assert client.get("/?token=wrong").status_code == 401
+    bearer = {"Authorization": f"Bearer {settings.token}"}
+    assert (
+        client.post("/api/plan", json={"patient": {"weight_kg": 80}}, headers=bearer).status_code
+        == 200
+    )
+
+
+def test_a_foreign_host_is_refused() -> None:
+    """DNS rebinding: a page at evil.example resolving to 127.0.0.1 must not be served."""
+    client, _ = _client()
+    assert client.get("/", headers={"Host": "evil.example:8750"}).status_code == 421
+    assert client.get("/", headers={"Host": "localhost:8750"}).status_code == 200
+
+
+def test_a_form_without_its_csrf_token_is_refused() -> None:
+    client, settings = _client()
+    assert client.post("/plan", data={"patient.weight_kg": "80"}).status_code == 403
+    ok = client.post("/plan", data={"patient.weight_kg": "80", "csrf": settings.csrf})
+    assert ok.status_code == 200 and "Airway level" in ok.text
+
+
+def test_an_oversized_body_is_refused_with_413() -> None:
+    client, _ = _client()
+    big = "x" * 2_000_000
+    r = client.post("/api/plan", content=big, headers={"Content-Type": "application/json"})
+    assert r.status_code == 413
+
+
+def test_pages_carry_the_safety_headers() -> None:
+    client, _ = _client()
+    r = client.get("/")
+    csp = r.headers["content-security-policy"]
+    assert "default-src 'self'" in csp and "frame-ancestors 'none'" in csp
+    assert "unsafe-inline" not in csp and "<script>" not in r.text
+    assert r.headers["cache-control"] == "no-store" and r.headers["x-frame-options"] == "DENY"
+    assert "decision aid" in r.text and "Reassess the airway" in r.text
+
+
+def test_a_non_loopback_bind_needs_a_long_token_from_a_file(runner, tmp_path: Path) -> None:
+    r = runner.invoke(cli, ["serve", "--host", "0.0.0.0", "--no-browser"])
+    assert r.exit_code == 2 and "--token-file" in r.stderr
+    short = tmp_path / "token"
+    short.write_text("abc")
+    r = runner.invoke(
+        cli, ["serve", "--host", "0.0.0.0", "--token-file", str(short), "--no-browser"]
+    )
+    assert r.exit_code == 2 and "at least 32" in r.stderr
+    long = tmp_path / "long"
+    long.write_text("k" * 40)
+    assert settings_for("0.0.0.0", 8750, None, long).token == "k" * 40
+
+
+@pytest.mark.parametrize("example", EXAMPLES, ids=[p.name for p in EXAMPLES])
+def test_the_api_gives_exactly_what_the_command_line_gives(runner, example: Path, tmp_path) -> None:
+    from airway.loading import read_assessment
+
+    client, _ = _client()
+    body = read_assessment(example).model_dump_json(exclude_none=True)
+    cli_json = runner.invoke(cli, ["plan", str(example), "-f", "json"]).stdout_bytes
+    api = client.post("/api/plan", content=body, headers={"Content-Type": "application/json"})
+    assert api.status_code == 200 and api.content == cli_json
+    pdf = tmp_path / "p.pdf"
+    assert runner.invoke(cli, ["plan", str(example), "--pdf", str(pdf)]).exit_code == 0
+    api_pdf = client.post(
+        "/api/plan.pdf", content=body, headers={"Content-Type": "application/json"}
+    )
+    assert api_pdf.content == pdf.read_bytes()
+
+
+def test_bad_input_is_a_422_listing_each_problem_by_field() -> None:
+    client, _ = _client()
+    r = client.post(
+        "/api/plan", json={"patient": {"weight_kg": 8000}, "airway": {"mallampati": True}}
+    )
+    assert r.status_code == 422
+    fields = {p["field"] for p in r.json()["problems"]}
+    assert fields == {"patient.weight_kg", "airway.mallampati"}
+
+
+def test_the_form_keeps_what_was_typed_and_puts_the_error_beside_the_field() -> None:
+    client, settings = _client()
+    r = client.post(
+        "/plan",
+        data={
+            "patient.weight_kg": "80 kg",
+            "patient.height_cm": "1.62",
+            "identity.name": "Ann Test",
+            "csrf": settings.csrf,
+        },
+    )
+    assert r.status_code == 422
+    assert 'value="80 kg"' in r.text and 'value="Ann Test"' in r.text
+    assert 'id="f-patient-height_cm-e"' in r.text and "looks like metres" in r.text
+
+
+def test_a_plan_is_saved_to_the_plans_folder_and_shown_on_the_board(tmp_path: Path) -> None:
+    client, settings = _client(tmp_path)
+    r = client.post(
+        "/plan", data={"patient.weight_kg": "80", "patient.in_labour": "yes", "csrf": settings.csrf}
+    )
+    assessment = r.text.split('name="assessment" value="')[1].split('"')[0]
+    import html
+
+    saved = client.post(
+        "/save", data={"assessment": html.unescape(assessment), "csrf": settings.csrf}
+    )
+    assert saved.status_code == 200 and "Saved as plan-" in saved.text
+    (plan_file,) = tmp_path.glob("plan-*.json")
+    assert json.loads(plan_file.read_text())["risk"]["level"] in (1, 2, 3, 4)
+    board = client.get("/board")
+    assert plan_file.stem in board.text
+    pdf = client.post(
+        "/download/pdf", data={"assessment": html.unescape(assessment), "csrf": settings.csrf}
+    )
+    assert pdf.content.startswith(b"%PDF") and "attachment" in pdf.headers["content-disposition"]
