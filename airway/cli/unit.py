@@ -179,10 +179,14 @@ def board(
     ] = None,
     paper: PaperOpt = Paper.A4,
     force: ForceOpt = False,
+    ward_only: Annotated[
+        bool,
+        typer.Option("--ward-only", help="Only the women on the ward now.", rich_help_panel=INPUT),
+    ] = False,
 ) -> None:
     """The labour ward's airway board, from a folder of plans.
 
-    One line per woman, highest airway level first; old plans are marked.
+    The women on the ward now first, then highest airway level; old plans are marked.
 
     Example: airway board plans -o board.pdf
     """
@@ -194,7 +198,7 @@ def board(
     except ValueError:
         raise typer.BadParameter("write the date as YYYY-MM-DD", param_hint="--today") from None
     with errors():
-        made = ward_board(folder, when, max_age_days, paper.value)
+        made = ward_board(folder, when, max_age_days, paper.value, ward_only)
         write_atomic(output, made.pdf, force=force)
     for note in made.notes:
         typer.echo(f"airway: {note}", err=True)

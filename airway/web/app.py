@@ -1,6 +1,8 @@
 """The web application: pages for the clinic and the ward, and a JSON API, on the
 same engine and renderers as the command line."""
 
+import io
+import secrets
 from pathlib import Path
 from typing import Any
 
@@ -56,7 +58,10 @@ def create_app(settings: Settings) -> FastAPI:
 
     @app.get("/", response_class=HTMLResponse)
     def form_page(request: Request) -> HTMLResponse:
-        return page(request, "form.html", sections=groups({}, (), {}))
+        from datetime import date
+
+        today = {"assessed_on": date.today().isoformat()}
+        return page(request, "form.html", sections=groups(today, (), {}))
 
     @app.post("/plan", response_class=HTMLResponse)
     async def plan_page(request: Request) -> HTMLResponse:
@@ -156,6 +161,39 @@ def create_app(settings: Settings) -> FastAPI:
         rows = board_rows(plans, date.today(), edited=edited)
         return page(request, "board.html", rows=rows, notes=notes, women=count_women(plans))
 
+    lists: dict[str, bytes] = {}  # the last few clinic lists' zips, in memory only
+
+    @app.get("/clinic", response_class=HTMLResponse)
+    def clinic_page(request: Request) -> HTMLResponse:
+        return page(request, "clinic.html", rows=None)
+
+    @app.post("/clinic", response_class=HTMLResponse)
+    async def clinic(request: Request) -> HTMLResponse:
+        form = await _form(request, settings)
+        upload = form.get("list")
+        data = await upload.read() if hasattr(upload, "read") else b""
+        await form.close()  # the upload's temporary file, at once
+        try:
+            summary, made = clinic_zip(data, pdf=form.get("pdf") == "yes")
+        except AirwayError as exc:
+            return page(request, "clinic.html", 422, rows=None, problem=str(exc))
+        key = secrets.token_urlsafe(12)
+        lists[key] = made
+        while len(lists) > CLINIC_LISTS_KEPT:
+            lists.pop(next(iter(lists)))
+        bad_first = sorted(summary, key=lambda s: (s.level is not None, -(s.level or 0), s.row))
+        return page(request, "clinic.html", rows=bad_first, key=key)
+
+    @app.get("/clinic/{key}.zip")
+    def clinic_download(key: str) -> Response:
+        made = lists.get(key)
+        if made is None:
+            return Response("this list is no longer held: upload it again\n", 404)
+        disposition = 'attachment; filename="airway-clinic-plans.zip"'
+        return Response(
+            made, media_type="application/zip", headers={"Content-Disposition": disposition}
+        )
+
     @app.get("/sheets", response_class=HTMLResponse)
     def sheets_page(request: Request) -> HTMLResponse:
         from ..workflows.sheets import SHEETS
@@ -179,6 +217,32 @@ def create_app(settings: Settings) -> FastAPI:
         return Response(pdf, media_type=PDF, headers={"Content-Disposition": disposition})
 
     return app
+
+
+CLINIC_LISTS_KEPT = 5  # zips held in memory for download, newest kept (project rule)
+
+
+def clinic_zip(data: bytes, pdf: bool) -> tuple[tuple[Any, ...], bytes]:
+    """A clinic list's summary rows and a zip of its plans and summary, made in a
+    temporary folder removed at once: nothing is left on disk."""
+    import tempfile
+    import zipfile
+
+    from ..unit.catalogue import load_catalogue
+    from ..unit.checklists import load_checklists
+    from ..workflows.batch import run_batch
+
+    with tempfile.TemporaryDirectory(prefix="airway-") as folder:
+        source = Path(folder) / "list.csv"
+        source.write_bytes(data)
+        out = Path(folder) / "plans"
+        result = run_batch(source, out, load_catalogue(), load_checklists(), pdf=pdf)
+        buffer = io.BytesIO()
+        with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED) as made:
+            for path in sorted(out.iterdir()):
+                if not path.name.startswith("."):
+                    made.write(path, path.name)
+    return result.summary, buffer.getvalue()
 
 
 def _plan_from_json(body: bytes) -> Plan | JSONResponse:

@@ -21,6 +21,9 @@ from ..errors import InputError, Problem
 from ..loading import read_bounded
 from ..unit.catalogue import load_catalogue
 
+# A woman in labour, or assessed today or yesterday, is taken to be on the ward now
+# (project rule): the coordinator's question is who carries airway risk tonight.
+ON_WARD_DAYS = 1
 DEFAULT_MAX_AGE_DAYS = 14  # project rule: a clinic plan older than two weeks is checked again
 SKIPPED = ("summary",)  # the clinic summary lives in the same folder
 
@@ -35,6 +38,7 @@ class BoardRow:
     decision: str
     assessed_on: str
     warnings: tuple[str, ...]
+    on_ward: bool = False  # in labour, or assessed within ON_WARD_DAYS: here tonight
 
 
 EDITED = "values edited after saving: shown as recomputed from its assessment; replan"
@@ -105,6 +109,8 @@ def board_row(
         decision=at_a_glance(plan.decision.recommendation, plan.decision.if_category),
         assessed_on="" if assessed is None else assessed.isoformat(),
         warnings=tuple(warnings),
+        on_ward=bool(plan.assessment.patient.in_labour)
+        or (assessed is not None and 0 <= (today - assessed).days <= ON_WARD_DAYS),
     )
 
 
@@ -114,7 +120,8 @@ def board_rows(
     max_age_days: int = DEFAULT_MAX_AGE_DAYS,
     edited: frozenset[str] | set[str] = frozenset(),
 ) -> list[BoardRow]:
-    """One row per plan, highest airway level first, then by name; replaced plans last.
+    """One row per plan: the women on the ward now first, then by airway level, highest
+    first, then by name; replaced plans last.
 
     Plans that share a record number are one woman's: the clinic plan and the labour
     plan side by side. Every plan but the newest is marked as replaced by it, so the
@@ -123,8 +130,8 @@ def board_rows(
     rows = [board_row(name, plan, today, max_age_days, name in edited) for name, plan in plans]
     extra, replaced = _same_woman_warnings(plans)
     rows = [replace(r, warnings=r.warnings + extra.get(r.name, ())) for r in rows]
-    # A replaced plan goes to the foot of the board, whatever its level.
-    return sorted(rows, key=lambda r: (r.name in replaced, -r.level, r.name))
+    # The women on the ward now first, whatever their level; a replaced plan at the foot.
+    return sorted(rows, key=lambda r: (r.name in replaced, not r.on_ward, -r.level, r.name))
 
 
 def _record_key(plan: Plan) -> str | None:
@@ -180,8 +187,11 @@ class Board(NamedTuple):
     women: int
 
 
-def ward_board(folder: Path, today: date, max_age_days: int, paper: str = "A4") -> Board:
-    """The board's PDF from a folder of saved plans, aged from ``today``.
+def ward_board(
+    folder: Path, today: date, max_age_days: int, paper: str = "A4", ward_only: bool = False
+) -> Board:
+    """The board's PDF from a folder of saved plans, aged from ``today``; ``ward_only``
+    for just the women on the ward now.
 
     Raises:
         InputError: ``folder`` is not a folder.
@@ -192,6 +202,10 @@ def ward_board(folder: Path, today: date, max_age_days: int, paper: str = "A4") 
         raise InputError(str(folder), [Problem("(folder)", "is not a folder")])
     plans, notes, edited = load_plans(folder)
     rows = board_rows(plans, today, max_age_days, edited)
+    if ward_only:
+        here = {r.name for r in rows if r.on_ward}
+        rows = [r for r in rows if r.on_ward]
+        plans = [(name, plan) for name, plan in plans if name in here]
     count = count_women(plans)
     pdf = render_board_pdf(rows, today.isoformat(), max_age_days, notes, paper, count)
     return Board(pdf=pdf, notes=tuple(notes), women=count)

@@ -51,6 +51,14 @@ def server(tmp_path: Path):  # type: ignore[no-untyped-def]
     thread.join(5)
 
 
+def _no_serious_accessibility_violation(page) -> None:  # type: ignore[no-untyped-def]
+    """axe-core (as shipped by axe-playwright-python): no serious or critical violation."""
+    axe = pytest.importorskip("axe_playwright_python.sync_playwright")
+    found = axe.Axe().run(page).response["violations"]
+    bad = [v["id"] for v in found if v.get("impact") in ("serious", "critical")]
+    assert not bad, bad
+
+
 def test_a_clinic_doctor_enters_a_woman_with_the_keyboard_and_gets_her_plan(
     server, tmp_path
 ) -> None:
@@ -74,11 +82,13 @@ def test_a_clinic_doctor_enters_a_woman_with_the_keyboard_and_gets_her_plan(
             "document.getElementById('live').textContent.includes('Airway level 4')"
         )
         page.screenshot(path=str(tmp_path / "form.png"), full_page=True)
+        _no_serious_accessibility_violation(page)
         page.get_by_role("button", name="Make the plan").click()
         page.wait_for_load_state()
         assert "Airway level 4 of 4" in page.content()
         assert "Test Woman" in page.content()
         page.screenshot(path=str(tmp_path / "plan.png"), full_page=True)
+        _no_serious_accessibility_violation(page)
         with page.expect_download() as got:
             page.get_by_role("button", name="Download PDF").click()
         assert Path(got.value.path()).read_bytes().startswith(b"%PDF")
@@ -88,6 +98,7 @@ def test_a_clinic_doctor_enters_a_woman_with_the_keyboard_and_gets_her_plan(
         page.goto(f"http://127.0.0.1:{server.port}/board")
         assert "4 of 4" in page.content()
         page.screenshot(path=str(tmp_path / "board.png"), full_page=True)
+        _no_serious_accessibility_violation(page)
         browser.close()
     shots = Path("/tmp/airway-screens")
     shots.mkdir(exist_ok=True)

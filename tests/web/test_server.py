@@ -153,3 +153,23 @@ def test_a_plan_is_saved_to_the_plans_folder_and_shown_on_the_board(tmp_path: Pa
         "/download/pdf", data={"assessment": html.unescape(assessment), "csrf": settings.csrf}
     )
     assert pdf.content.startswith(b"%PDF") and "attachment" in pdf.headers["content-disposition"]
+
+
+def test_a_clinic_list_is_uploaded_planned_and_downloaded_as_a_zip() -> None:
+    import io
+    import zipfile
+
+    client, settings = _client()
+    csv = (EXAMPLES[0].parent / "clinic-list.csv").read_bytes()
+    r = client.post(
+        "/clinic",
+        data={"csrf": settings.csrf, "pdf": "no"},
+        files={"list": ("list.csv", csv, "text/csv")},
+    )
+    assert r.status_code == 200 and "bad rows first" in r.text
+    key = r.text.split('href="/clinic/')[1].split(".zip")[0]
+    made = zipfile.ZipFile(io.BytesIO(client.get(f"/clinic/{key}.zip").content))
+    names = made.namelist()
+    assert "summary.csv" in names and sum(n.endswith(".json") for n in names) >= 190
+    first_row = r.text.split("<tbody>")[1].split("</tr>")[0]
+    assert "not planned" in first_row  # a bad row leads the table

@@ -175,3 +175,23 @@ def test_a_womans_older_plan_is_marked_replaced_by_her_newer_one(runner, tmp_pat
     text = " ".join(p.extract_text() for p in PdfReader(tmp_path / "b.pdf").pages)
     assert "3 women" in text and "replaced by labour" in " ".join(text.split())
     assert "4471" not in text and "RN-9" not in text
+
+
+def test_the_women_on_the_ward_now_come_first_whatever_their_level(tmp_path: Path) -> None:
+    """'Who on the ward carries airway risk tonight': a woman in labour at level 1 and one
+    assessed today come before a level-4 clinic plan of a woman not yet admitted."""
+    from datetime import date
+
+    from airway import plan_for
+
+    from ..conftest import make
+
+    today = date(2026, 12, 3)
+    plans = [
+        ("clinic", plan_for(make(assessed_on="2026-11-20", history={"intubation": "failed"}))),
+        ("labour", plan_for(make(assessed_on="2026-11-28", patient={"in_labour": True}))),
+        ("today", plan_for(make(assessed_on="2026-12-03"))),
+    ]
+    rows = board_rows(plans, today)
+    assert [r.name for r in rows] == ["labour", "today", "clinic"]
+    assert rows[0].on_ward and rows[1].on_ward and not rows[2].on_ward and rows[2].level == 4

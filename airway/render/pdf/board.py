@@ -38,7 +38,7 @@ def render_board_pdf(
     for r in rows:
         table.append(
             [
-                para(r.name, st["bold"]),
+                para(r.name + (" (on the ward now)" if r.on_ward else ""), st["bold"]),
                 para(f"{r.level}: {LEVEL_LABELS[r.level]}", st["body"]),
                 f"{r.first_tube_mm:.1f} mm",
                 f"size {r.supraglottic_size:g}",
@@ -73,9 +73,10 @@ def render_board_pdf(
         ruled,
         Spacer(0, 4),
         para(
-            f"Highest airway level first (a bar marks levels 3 and 4). 'Check' marks a plan "
-            f"older than {max_age_days} days, dated after today, without an assessment date, "
-            f"or made under rules other than {RULES_VERSION}: reassess and replan before "
+            "The women on the ward now (in labour, or assessed today or yesterday) first, "
+            "then by airway level, highest first (a bar marks levels 3 and 4). 'Check' marks "
+            f"a plan older than {max_age_days} days, dated after today, without an assessment "
+            f"date, or made under rules other than {RULES_VERSION}: reassess and replan before "
             "relying on it; and a plan replaced by a newer one for the same record number. "
             "SpO2 90% is the predicted minutes of apnoea (model estimate); the full plan, "
             "with its sources, is in each woman's plan file.",
