@@ -19,6 +19,8 @@ from ..render.json import render_json_bytes
 from ..render.markdown import render_markdown
 from ..render.pdf.plan import render_plan_pdf
 from ..render.text import shown_factors
+from ..unit.catalogue import load_catalogue
+from ..unit.checklists import load_checklists
 from ..workflows.planning import plan_for
 from .form import groups, read_form
 from .security import BODY_LIMIT_BYTES, COOKIE, HEADERS, Settings, token_ok
@@ -40,6 +42,17 @@ def _html(markdown: str) -> str:
 def create_app(settings: Settings) -> FastAPI:
     """The application for one start of the server."""
     app = FastAPI(title="airway", docs_url=None, redoc_url=None, openapi_url="/api/openapi.json")
+    # The shipped unit files, read once per start (as the command line reads them once
+    # per run): a plan is then made in a few milliseconds.
+    unit = (load_catalogue(), load_checklists())
+
+    def plan_of(assessment: Assessment) -> Plan:
+        return plan_for(assessment, *unit)
+
+    def plan_from_json(body: bytes) -> Plan | JSONResponse:
+        made = _assessment_from_json(body)
+        return made if isinstance(made, JSONResponse) else plan_of(made)
+
     pages = Jinja2Templates(directory=HERE / "templates")
     app.mount("/static", StaticFiles(directory=HERE / "static"), name="static")
     app.add_exception_handler(_TooLarge, _too_large)
@@ -72,7 +85,7 @@ def create_app(settings: Settings) -> FastAPI:
         if assessment is None:
             sections = groups(values, signs, errors)
             return page(request, "form.html", 422, sections=sections, errors=errors)
-        plan = plan_for(assessment)
+        plan = plan_of(assessment)
         return page(
             request,
             "plan.html",
@@ -89,7 +102,7 @@ def create_app(settings: Settings) -> FastAPI:
         assessment, errors = read_form(values, signs)
         if assessment is None:
             return JSONResponse({"heading": "", "problems": len(errors)})
-        risk = plan_for(assessment, checklists=()).risk
+        risk = plan_for(assessment, unit[0], ()).risk
         drivers = [
             f.label for f in shown_factors(risk) if f.contribution > 0 or f.role == "override"
         ]
@@ -97,14 +110,14 @@ def create_app(settings: Settings) -> FastAPI:
 
     @app.post("/api/plan")
     async def api_plan(request: Request) -> Response:
-        plan = _plan_from_json(await _body(request, "api"))
+        plan = plan_from_json(await _body(request, "api"))
         if isinstance(plan, JSONResponse):
             return plan
         return Response(render_json_bytes(plan), media_type="application/json")
 
     @app.post("/api/plan.pdf")
     async def api_plan_pdf(request: Request) -> Response:
-        plan = _plan_from_json(await _body(request, "api"))
+        plan = plan_from_json(await _body(request, "api"))
         if isinstance(plan, JSONResponse):
             return plan
         return Response(render_plan_pdf(plan, "A4"), media_type=PDF)
@@ -112,7 +125,7 @@ def create_app(settings: Settings) -> FastAPI:
     @app.post("/download/{fmt}")
     async def download(request: Request, fmt: str) -> Response:
         form = await _form(request, settings)
-        plan = _plan_from_json(str(form.get("assessment", "")).encode())
+        plan = plan_from_json(str(form.get("assessment", "")).encode())
         if isinstance(plan, JSONResponse):
             return plan
         name = f"airway-plan-{plan.input_sha256[:12]}"
@@ -132,7 +145,7 @@ def create_app(settings: Settings) -> FastAPI:
         from ..output import write_atomic
 
         form = await _form(request, settings)
-        plan = _plan_from_json(str(form.get("assessment", "")).encode())
+        plan = plan_from_json(str(form.get("assessment", "")).encode())
         if settings.plans is None or isinstance(plan, JSONResponse):
             return page(request, "message.html", 422, text="This plan could not be saved.")
         target = settings.plans / f"plan-{plan.input_sha256[:12]}.json"
@@ -245,8 +258,8 @@ def clinic_zip(data: bytes, pdf: bool) -> tuple[tuple[Any, ...], bytes]:
     return result.summary, buffer.getvalue()
 
 
-def _plan_from_json(body: bytes) -> Plan | JSONResponse:
-    """The plan for a JSON assessment, or a 422 listing every problem by field."""
+def _assessment_from_json(body: bytes) -> Assessment | JSONResponse:
+    """A JSON assessment, or a 422 listing every problem by field."""
     from ..loading import parse_assessment
 
     try:
@@ -255,7 +268,7 @@ def _plan_from_json(body: bytes) -> Plan | JSONResponse:
         return JSONResponse({"problems": [{"field": "(body)", "message": "not UTF-8"}]}, 422)
     except InputError as exc:
         return JSONResponse({"problems": _problems(exc)}, 422)
-    return plan_for(assessment)
+    return assessment
 
 
 async def _body(request: Request, kind: str) -> bytes:
