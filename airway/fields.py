@@ -201,10 +201,15 @@ def parse_text(spec: FieldSpec, text: str) -> object:
     if spec.kind == "choices":
         return [part.strip() for part in text.split(LIST_SEPARATOR) if part.strip()]
     if spec.kind == "date":
+        # dd/mm/yyyy as UK spreadsheets write it, or ISO YYYY-MM-DD.
+        day_first = re.fullmatch(r"(\d{1,2})[/.](\d{1,2})[/.](\d{4})", text)
         try:
+            if day_first:
+                d, m, y = (int(x) for x in day_first.groups())
+                return date(y, m, d).isoformat()
             return date.fromisoformat(text).isoformat()
         except ValueError:
-            raise ValueError("not a date; write it as YYYY-MM-DD") from None
+            raise ValueError("not a date; write it as YYYY-MM-DD or DD/MM/YYYY") from None
     return text
 
 

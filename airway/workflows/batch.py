@@ -21,7 +21,7 @@ from ..catalogue import Catalogue
 from ..checklist import Checklist
 from ..engine.plan import build_plan
 from ..errors import InputError, OutputExistsError, Problem
-from ..loading import read_bounded, read_text_file
+from ..loading import read_bounded
 from ..output import folder_lock, remove_stale_temporaries, write_atomic, write_group_atomic
 from ..render.json import render_json_bytes
 from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
@@ -59,8 +59,22 @@ class BatchResult:
 
 
 def read_list_file(path: Path) -> tuple[Row, ...]:
-    """The rows of a clinic list file (UTF-8, with or without a byte-order mark)."""
-    return read_clinic_list(read_text_file(path, kind="clinic list"), str(path))
+    """The rows of a clinic list file: UTF-8 with or without a byte-order mark, or
+    Windows-1252 as Excel saves a CSV on Windows; comma- or semicolon-separated."""
+    return read_clinic_list(decode_list(read_bounded(path, "clinic list"), str(path))[0], str(path))
+
+
+def decode_list(raw: bytes, name: str) -> tuple[str, str]:
+    """The list's text and the encoding it was read in."""
+    try:
+        return raw.decode("utf-8").removeprefix("\ufeff"), "UTF-8"
+    except UnicodeDecodeError:
+        pass
+    try:
+        return raw.decode("cp1252"), "Windows-1252"
+    except UnicodeDecodeError:
+        problem = Problem("(file)", "is neither UTF-8 nor Windows-1252 text")
+        raise InputError(name, [problem]) from None
 
 
 # This run's mark on its temporaries: a clinic-list run removes only its own.

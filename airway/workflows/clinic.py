@@ -68,7 +68,10 @@ def read_clinic_list(text: str, source: str) -> tuple[Row, ...]:
             repeated column): no row can be read until it is fixed.
     """
     text = text.removeprefix("\ufeff")
-    reader = csv.reader(io.StringIO(text, newline=""))
+    first = text.split("\n", 1)[0]
+    # Spreadsheets set to a decimal comma save lists separated by semicolons.
+    delimiter = ";" if first.count(";") > first.count(",") else ","
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     try:
         lines = list(reader)
     except csv.Error as exc:  # a cell longer than the csv module's limit, for one
@@ -79,7 +82,7 @@ def read_clinic_list(text: str, source: str) -> tuple[Row, ...]:
         raise InputError(source, [Problem("(file)", hint)])
     header = [h.strip() for h in (lines[0] if lines else [])]
     if len(header) == 1:
-        for mark, name in ((";", "semicolons"), ("\t", "tabs")):
+        for mark, name in (("\t", "tabs"),):
             if mark in header[0]:
                 # Spreadsheets set to a decimal comma export lists this way.
                 hint = f"columns are separated by {name}; save the list as comma-separated CSV"

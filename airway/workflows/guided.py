@@ -23,6 +23,10 @@ from ..loading import problems_from_validation
 # The examination as it runs: (heading, field paths).
 GROUPS: tuple[tuple[str, tuple[str, ...]], ...] = (
     (
+        "Her identifiers (printed on her own plan only; blank to leave out)",
+        ("identity.name", "identity.record_number", "identity.date_of_birth"),
+    ),
+    (
         "Patient",
         (
             "assessed_on",
@@ -140,36 +144,51 @@ def guided_entry(ask: Ask, say: Say, today: date | None = None) -> Assessment:
         Stopped: Ctrl-C or end of input before the last answer (nothing is kept).
     """
     values: dict[str, object] = {}
+    steps = [(heading, path) for heading, paths in GROUPS for path in paths]
+    n, shown = 0, ""
     try:
-        for heading, paths in GROUPS:
-            say(f"\n{heading.upper()}")
-            for path in paths:
-                spec = BY_PATH[path]
-                while True:
-                    answer = ask(question(spec, today))
-                    if spec.kind == "date" and today and answer.strip().lower() == TODAY:
-                        answer = today.isoformat()
-                    try:
-                        value = parse_text(spec, answer)
-                    except ValueError as exc:
-                        say(f"  {exc}; try again")
-                        continue
-                    if value is None and spec.required:
-                        say("  this one is needed for every plan; try again")
-                        continue
-                    trial = {**values, path: value}
-                    problems = _check(trial, path)
-                    if problems:
-                        say(f"  {'; '.join(problems)}; try again")
-                        continue
-                    values = trial
-                    break
-                clinical = ("airway.", "history.", "preeclampsia.", "patient.height")
-                if value is not None and path.startswith(clinical):
-                    say(f"  -> {running_level(values)}")
+        while n < len(steps):
+            heading, path = steps[n]
+            if heading != shown:
+                say(f"\n{heading.upper()}")
+                shown = heading
+            answer = ask(question(BY_PATH[path], today))
+            if answer.strip().lower() == BACK:
+                n = max(0, n - 1)  # the previous question is asked again
+                values.pop(steps[n][1], None)
+                continue
+            value, problem = _answer(path, answer, values, today)
+            if problem:
+                say(f"  {problem}; try again")
+                continue
+            values[path] = value
+            clinical = ("airway.", "history.", "preeclampsia.", "patient.height")
+            if value is not None and path.startswith(clinical):
+                say(f"  -> {running_level(values)}")
+            n += 1
     except (EOFError, KeyboardInterrupt):
         raise Stopped from None
     return Assessment.model_validate(nest(values))
+
+
+BACK = "back"  # an answer that returns to the previous question
+
+
+def _answer(
+    path: str, answer: str, values: dict[str, object], today: date | None
+) -> tuple[object, str]:
+    """The value of one answer, or what is wrong with it."""
+    spec = BY_PATH[path]
+    if spec.kind == "date" and today and answer.strip().lower() == TODAY:
+        answer = today.isoformat()
+    try:
+        value = parse_text(spec, answer)
+    except ValueError as exc:
+        return None, str(exc)
+    if value is None and spec.required:
+        return None, "this one is needed for every plan"
+    problems = _check({**values, path: value}, path)
+    return (None, "; ".join(problems)) if problems else (value, "")
 
 
 def _toml_value(value: Any) -> str:

@@ -170,6 +170,8 @@ def test_through_a_terminal_ctrl_c_saves_nothing(tmp_path: Path) -> None:
     out = tmp_path / "a.toml"
     proc, fd, slave = _in_a_terminal([sys.executable, "-m", "airway", "assess", "-o", str(out)])
     try:
+        assert b"Her name" in _read_until(fd, b"Her name")  # the identifiers come first
+        os.write(fd, b"\n\n\n")
         assert b"Date of this assessment" in _read_until(fd, b"Date of this assessment")
         os.write(fd, b"2026-12-01\n")
         assert b"Current weight" in _read_until(fd, b"Current weight")
@@ -193,14 +195,36 @@ def test_the_date_may_be_answered_today() -> None:
     caller passes in (the library reads no clock); without one, 'today' is not a date."""
     from datetime import date
 
-    def answers(first: str):  # type: ignore[no-untyped-def]
-        lines = iter([first] + [ANSWERS.get(p, "") for p in ORDER[1:]])
+    def answers(date_answers: list[str]):  # type: ignore[no-untyped-def]
+        lines = iter(
+            [
+                a
+                for p in ORDER
+                for a in (date_answers if p == "assessed_on" else [ANSWERS.get(p, "")])
+            ]
+        )
         return lambda _prompt: next(lines)
 
     said: list[str] = []
-    a = guided_entry(answers("Today"), said.append, date(2026, 12, 3))
+    a = guided_entry(answers(["Today"]), said.append, date(2026, 12, 3))
     assert a.assessed_on == date(2026, 12, 3)
-    lines = iter(["today", "2026-12-01"] + [ANSWERS.get(p, "") for p in ORDER[1:]])
-    b = guided_entry(lambda _prompt: next(lines), said.append)
+    b = guided_entry(answers(["today", "2026-12-01"]), said.append)
     assert b.assessed_on == date(2026, 12, 1)
     assert any("not a date" in s for s in said)
+
+
+def test_identifiers_first_and_back_returns_to_the_previous_question() -> None:
+    """The identifiers are asked first, so a plan can be filed; 'back' asks the previous
+    question again and its new answer replaces the old one."""
+    said: list[str] = []
+    script = iter(["Ann Test", "RX1", "", "2026-12-01", "89", "back", "98"] + [""] * 60)
+    prompts: list[str] = []
+
+    def ask(prompt: str) -> str:
+        prompts.append(prompt)
+        return next(script)
+
+    a = guided_entry(ask, said.append)
+    assert prompts[0].startswith("Her name") and a.identity.name == "Ann Test"
+    assert a.patient.weight_kg == 98 and prompts[5].startswith("Height")
+    assert prompts[6].startswith("Current weight")
