@@ -54,8 +54,17 @@ def check_writable(dest: Path, force: bool) -> None:
         raise OutputExistsError(str(dest))
 
 
+# A patient's plan is readable by its owner only; a generic trolley sheet by everyone,
+# so that it can go to a shared print folder.
+PRIVATE, SHARED = 0o600, 0o644
+
+
 def write_atomic(
-    path: str | Path, data: bytes, force: bool = False, sweep_stale: bool = True
+    path: str | Path,
+    data: bytes,
+    force: bool = False,
+    sweep_stale: bool = True,
+    mode: int = PRIVATE,
 ) -> Path:
     """Write ``data`` to ``path`` in one step.
 
@@ -75,6 +84,7 @@ def write_atomic(
     fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=dest.parent or ".")
     try:
         with os.fdopen(fd, "wb") as handle:
+            os.fchmod(handle.fileno(), mode)
             handle.write(data)
             handle.flush()
             os.fsync(handle.fileno())

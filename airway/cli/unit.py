@@ -75,13 +75,14 @@ def sheet(
 
     Example: airway sheet doses --paper A3 -o doses-A3.pdf
     """
-    from ..output import write_atomic
+    from ..output import SHARED, write_atomic
     from ..unit.config import load_unit
     from ..workflows.sheets import sheet_pdf
 
     with errors():
         unit = load_unit(config, catalogue, checklists)
-        write_atomic(output, sheet_pdf(kind.value, unit, contacts, paper.value, landscape), force)
+        pdf = sheet_pdf(kind.value, unit, contacts, paper.value, landscape)
+        write_atomic(output, pdf, force, mode=SHARED)
         typer.echo(f"wrote {output}", err=True)
 
 

@@ -11,11 +11,19 @@ Paths are relative to the config file. Flags on the command line win over the
 file; the shipped files are the fallback for anything not given.
 """
 
+from datetime import date
 from pathlib import Path
-from typing import NamedTuple
+from typing import Annotated, NamedTuple
 
-from pydantic import BaseModel, ConfigDict, ValidationError
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    ConfigDict,
+    StringConstraints,
+    ValidationError,
+)
 
+from ..assessment import plain_printable
 from ..catalogue import Catalogue
 from ..checklist import Checklist
 from ..errors import CatalogueError
@@ -26,11 +34,20 @@ from .checklists import load_checklists
 DEFAULT_CONFIG = Path("airway.toml")
 
 
+_Text = Annotated[
+    str, StringConstraints(min_length=1, max_length=60), AfterValidator(plain_printable)
+]
+
+
 class UnitPaths(BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
     checklists: Path | None = None
     catalogue: Path | None = None
     contacts: Path | None = None
+    # Printed on the laminated sheets: whose they are, who approved them, when to review.
+    unit_name: _Text | None = None
+    approved_by: _Text | None = None
+    review_by: date | None = None
 
 
 def load_unit_paths(config: Path | None) -> UnitPaths:
@@ -45,8 +62,9 @@ def load_unit_paths(config: Path | None) -> UnitPaths:
     except ValidationError as exc:
         raise CatalogueError(str(config), problems_from_validation(exc, UnitPaths)) from None
     base = config.parent
-    return UnitPaths(
-        **{k: (base / v if v is not None else None) for k, v in paths.model_dump().items()}
+    files = ("checklists", "catalogue", "contacts")
+    return paths.model_copy(
+        update={k: base / v for k in files if (v := getattr(paths, k)) is not None}
     )
 
 

@@ -82,6 +82,8 @@ class Sheet(BaseModel):
     notes: tuple[str, ...] = ()
     # The dose sheet: each drug's strength as the unit's catalogue lists it (mg/mL).
     strengths: dict[str, float] = {}
+    # From the unit's config: whose sheet it is, who approved it, when to review it.
+    owner: str = ""
 
 
 def build_sheet(
@@ -132,4 +134,16 @@ def sheet_pdf(kind: str, unit: Unit, contacts: Path | None, paper: str, landscap
 
     people = load_contacts(contacts or unit.paths.contacts)
     content = build_sheet(kind, unit.checklists, unit.catalogue, people)
-    return render_sheet_pdf(content, paper, landscape)
+    return render_sheet_pdf(
+        content.model_copy(update={"owner": owner_line(unit)}), paper, landscape
+    )
+
+
+def owner_line(unit: Unit) -> str:
+    """'Maternity unit A · approved by the obstetric anaesthesia lead · review by 2027-06-01',
+    or a line to write on when the config says nothing."""
+    p = unit.paths
+    return (
+        f"{p.unit_name or 'Unit: ____________'} · approved by {p.approved_by or '____________'}"
+        f" · review by {p.review_by.isoformat() if p.review_by else '__________'}"
+    )

@@ -274,3 +274,37 @@ def test_dose_table_words_clear_of_the_rules_and_inside_the_page(
             for line in str(cell).split("\n"):
                 room = width - 2 * rs.MIN_CELL_PADDING_PT
                 assert pdfmetrics.stringWidth(line, face, size) <= room, (line, paper)
+
+
+def test_a_sheet_names_its_unit_approver_and_review_date_and_is_readable_by_all(
+    runner, tmp_path: Path
+) -> None:
+    """Laminated sheets go to a shared print folder and carry who owns them; a patient's
+    plan stays private to its owner. Nothing on a sheet says 'from memory'."""
+    import stat
+
+    from airway.cli import app
+
+    config = tmp_path / "airway.toml"
+    config.write_text(
+        'unit_name = "Invented maternity unit"\napproved_by = "Airway lead"\n'
+        "review_by = 2027-06-01\n"
+    )
+    out = tmp_path / "sequence.pdf"
+    r = runner.invoke(app, ["sheet", "sequence", "--config", str(config), "-o", str(out)])
+    assert r.exit_code == 0, r.stderr
+    assert stat.S_IMODE(out.stat().st_mode) == 0o644
+    text = _pdf_text(out)
+    assert "Invented maternity unit" in text and "Airway lead" in text and "2027-06-01" in text
+    assert "from memory" not in text
+    plan = tmp_path / "plan.pdf"
+    assert runner.invoke(app, ["plan", "--demo", "--pdf", str(plan)]).exit_code == 0
+    assert stat.S_IMODE(plan.stat().st_mode) == 0o600
+
+
+def _pdf_text(path: Path) -> str:
+    import io
+
+    from pypdf import PdfReader
+
+    return " ".join(p.extract_text() for p in PdfReader(io.BytesIO(path.read_bytes())).pages)

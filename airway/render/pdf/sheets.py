@@ -296,7 +296,7 @@ def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes
         leftMargin=margin,
         rightMargin=margin,
         topMargin=margin,
-        bottomMargin=margin + 6 * mm,
+        bottomMargin=margin + (9 if sheet.owner else 6) * mm,
         title=sheet.title,
         author="airway",
         creator=f"airway {__version__}",
@@ -335,6 +335,8 @@ def _render(sheet: Sheet, paper: str, landscape_: bool, k: float) -> tuple[bytes
         footer_pt = max(MIN_FONT_PT, 8 * k)
         canvas.setFont(font(), footer_pt)
         canvas.drawString(margin, margin + 1.25 * footer_pt, footer)
+        if sheet.owner:
+            canvas.drawString(margin, margin + 2.5 * footer_pt, sheet.owner)
         canvas.drawString(margin, margin, footer2)
         canvas.drawRightString(size[0] - margin, margin, f"page {doc_.page}")
 
