@@ -11,8 +11,9 @@ changes that make the plan more dangerous first. Pure.
 
 from typing import Any
 
-from ..fields import field_specs
+from ..fields import LABELS, field_specs
 from .doses import dose_text
+from .factors import NECK_CIRCUMFERENCE_LARGE_CM, PLATELETS_LOW_10E9
 from .oxygenation import minutes_label
 from .plan_model import Change, Comparison, Plan
 from .scoring import finding_name, level_heading
@@ -25,6 +26,46 @@ LEVEL_WEIGHT = 10.0
 IDENTITY_WEIGHT = 50.0  # two plans that may not be the same woman outrank everything
 MINUTES_WEIGHT = 2.0  # per minute less to SpO2 90%
 LOST_FINDING_WEIGHT = 0.5  # a finding assessed before and not now: less is known
+CLINICAL_WEIGHT = 3.0  # a change a clinician must hear of, whatever the index does
+
+# The plan's own thresholds, so that a change "past a threshold" is one the plan acts on.
+_ORDERED = {
+    "preeclampsia.status": ("none", "without_severe_features", "with_severe_features"),
+    "history.intubation": ("none", "difficult", "failed"),
+    "airway.neck_movement": ("normal", "reduced", "fixed"),
+}
+
+
+_LOW_PLATELETS = (
+    f"platelets now below {PLATELETS_LOW_10E9:g} x10^9/L: regional block may be contraindicated"
+)
+_LARGE_NECK = "neck now over 43 cm: mask ventilation may be difficult"
+_NOW_TRUE = {
+    "patient.in_labour": "now in labour: the Mallampati class rises, the stomach is full",
+    "history.difficult_mask_ventilation": "difficult mask ventilation now known",
+}
+
+
+def _crossed_below(before: Any, after: Any, limit: float) -> bool:
+    return isinstance(after, int | float) and after < limit and (before is None or before >= limit)
+
+
+def clinical_reason(path: str, before: Any, after: Any) -> str:
+    """Why a changed finding matters at the bedside, or '' when it does not on its own."""
+    if path == "preeclampsia.signs":
+        new = sorted(set(after or ()) - set(before or ()))
+        return ("new sign of airway oedema: " + ", ".join(new).replace("_", " ")) if new else ""
+    if path == "preeclampsia.platelets_10e9_per_l":
+        return _LOW_PLATELETS if _crossed_below(before, after, PLATELETS_LOW_10E9) else ""
+    if path == "airway.mallampati" and isinstance(before, int) and isinstance(after, int):
+        return "Mallampati class rose" if after > before else ""
+    if path == "airway.neck_circumference_cm" and isinstance(after, int | float):
+        was_small = before is None or before <= NECK_CIRCUMFERENCE_LARGE_CM
+        return _LARGE_NECK if after > NECK_CIRCUMFERENCE_LARGE_CM and was_small else ""
+    if path in _ORDERED and before in _ORDERED[path] and after in _ORDERED[path]:
+        order = _ORDERED[path]
+        return "worse than before" if order.index(after) > order.index(before) else ""
+    return _NOW_TRUE.get(path, "") if after is True and before is not True else ""
 
 
 def _flatten(data: dict[str, Any], prefix: str = "") -> dict[str, Any]:
@@ -83,13 +124,16 @@ def _findings(earlier: Plan, later: Plan) -> list[Change]:
         # A finding examined before and not now leaves less known; the context (urgency,
         # team) is set on the day and is not a finding.
         lost = shown[1] == NOT_ASSESSED and spec.section != "context"
+        why = clinical_reason(spec.path, x, y)
         out.append(
             Change(
                 kind="finding",
                 what=spec.path,
                 before=shown[0],
                 after=shown[1],
-                danger=LOST_FINDING_WEIGHT if lost else 0.0,
+                danger=CLINICAL_WEIGHT if why else LOST_FINDING_WEIGHT if lost else 0.0,
+                label=LABELS.get(spec.path, ""),
+                why=why,
             )
         )
     return out

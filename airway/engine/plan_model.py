@@ -73,6 +73,10 @@ class Change(NamedTuple):
     before: str
     after: str
     danger: float  # > 0: the later plan is more dangerous on this count; < 0: less; 0: neither
+    # In clinical words, for a finding: 'Signs of airway oedema now' ('' when ``what`` reads
+    # already), and why the change matters clinically ('a new sign of airway oedema').
+    label: str = ""
+    why: str = ""
 
 
 class Comparison(NamedTuple):

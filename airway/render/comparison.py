@@ -10,7 +10,11 @@ from ..engine.scoring import level_heading
 def change_lines(comparison: Comparison, most: int | None = None) -> list[str]:
     """One line a change: '! airway level: ... -> ...' ('!' marks more dangerous)."""
     shown = comparison.changes if most is None else comparison.changes[:most]
-    lines = [f"{'!' if c.danger > 0 else '-'} {c.what}: {c.before} -> {c.after}" for c in shown]
+    lines = [
+        f"{'!' if c.danger > 0 else '-'} {c.label or c.what}: {c.before} -> {c.after}"
+        + (f" ({c.why})" if c.why else "")
+        for c in shown
+    ]
     if most is not None and len(comparison.changes) > most:
         lines.append(f"- and {len(comparison.changes) - most} more (airway compare shows all)")
     return lines or ["- no finding and no plan value changed"]

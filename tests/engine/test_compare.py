@@ -133,3 +133,33 @@ def test_a_saved_plan_without_a_readable_assessment_is_bad_input(runner, tmp_pat
     bad.write_text('{"assessment": [], "generated_by": {}, "input_sha256": "x"}')
     r = runner.invoke(app, ["plan", str(bad)])
     assert r.exit_code == 2 and "the assessment inside this saved plan" in r.output
+
+
+def test_clinically_important_changes_are_marked_and_named_in_clinical_words() -> None:
+    """A new voice change and platelets falling from 85 to 62 (below the 70 x10^9/L the
+    plan acts on; SOAP 2021 consensus, from memory) are marked '!' and say why, in words."""
+    from airway.render.comparison import change_lines
+
+    clinic = make(
+        assessed_on="2026-11-20",
+        airway={"mallampati": 2},
+        preeclampsia={"status": "without_severe_features", "platelets_10e9_per_l": 85},
+    )
+    labour = make(
+        assessed_on="2026-11-30",
+        airway={"mallampati": 3},
+        preeclampsia={
+            "status": "without_severe_features",
+            "platelets_10e9_per_l": 62,
+            "signs": ["voice_change"],
+        },
+    )
+    c = compare_plans(plan_for(clinic), plan_for(labour))
+    lines = change_lines(c, most=8)
+    for words in (
+        "new sign of airway oedema: voice change",
+        "platelets now below 70",
+        "Mallampati class rose",
+    ):
+        line = next(x for x in lines if words in x)
+        assert line.startswith("! ") and "preeclampsia." not in line and "airway." not in line
