@@ -57,6 +57,7 @@ def create_app(settings: Settings) -> FastAPI:
     app.mount("/static", StaticFiles(directory=HERE / "static"), name="static")
     app.add_exception_handler(_TooLarge, _too_large)
     app.add_exception_handler(_Forbidden, _forbidden)
+    app.add_exception_handler(AirwayError, _bad_input)
 
     @app.middleware("http")
     async def guard(request: Request, call_next: Any) -> Response:
@@ -329,6 +330,13 @@ async def _guarded(request: Request, call_next: Any, settings: Settings) -> Resp
 
 def _too_large(_request: Request, _exc: Exception) -> Response:
     return Response("request body too large\n", 413, media_type="text/plain")
+
+
+def _bad_input(_request: Request, exc: Exception) -> Response:
+    """Input the tool cannot print (a name the font cannot draw, say): 422 with the same
+    message the command line gives, never a 500."""
+    problem = {"field": "(document)", "message": str(exc)}
+    return JSONResponse({"problems": [problem]}, 422)
 
 
 def _forbidden(_request: Request, _exc: Exception) -> Response:

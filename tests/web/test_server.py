@@ -173,3 +173,11 @@ def test_a_clinic_list_is_uploaded_planned_and_downloaded_as_a_zip() -> None:
     assert "summary.csv" in names and sum(n.endswith(".json") for n in names) >= 190
     first_row = r.text.split("<tbody>")[1].split("</tr>")[0]
     assert "not planned" in first_row  # a bad row leads the table
+
+
+def test_a_name_the_font_cannot_draw_is_a_422_not_a_server_error() -> None:
+    client, _ = _client()
+    body = {"identity": {"name": "王秀英"}, "patient": {"weight_kg": 80}}
+    r = client.post("/api/plan.pdf", json=body)
+    assert r.status_code == 422 and "CJK" in r.json()["problems"][0]["message"]
+    assert client.post("/api/plan", json=body).status_code == 200  # JSON carries any script
