@@ -18,7 +18,6 @@ SECTION_TITLES = {
     "context": "Operation and team",
     "": "This assessment",
 }
-NOT_ASSESSED_LABEL = "not assessed"
 
 
 @dataclass(frozen=True)
