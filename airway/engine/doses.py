@@ -55,11 +55,6 @@ CONTINUITY_EVIDENCE = Evidence(
 # to the whole kilogram, millilitres to 0.5 mL (0.1 mL under 5 mL). Rounding to the
 # nearest step never leaves the published mg/kg range by more than half a step.
 ML_STEP, ML_FINE_STEP, ML_FINE_BELOW = 0.5, 0.1, 5.0
-ROUNDING_EVIDENCE = Evidence(
-    "project",
-    "project_rule",
-    "rounded to the nearest practical step; weight to the whole kilogram",
-)
 
 
 class Ceiling(NamedTuple):
@@ -88,10 +83,6 @@ class Drug(NamedTuple):
     note: str = ""
     ceiling: Ceiling | None = None
 
-
-STRENGTH_EVIDENCE = Evidence(
-    "project", "project_rule", "strength as the unit's catalogue stocks it"
-)
 
 DRUGS: tuple[Drug, ...] = (
     Drug(

@@ -65,7 +65,7 @@ CAUTION_AID = (
 CAUTION_REASSESS = (
     "Reassess the airway immediately before induction: findings change, especially in labour."
 )
-CAUTION_DOSES = "Doses are a calculation aid: check every dose and titrate to effect."
+CAUTION_DOSES = "Doses are a calculation aid in practical steps: check each and titrate."
 CAUTION_WEAK_TESTS = (
     "Bedside tests predict poorly in pregnancy (Hirmanpour 2014): a low airway level "
     "does not rule out a difficult airway."

@@ -19,6 +19,7 @@ from collections import Counter
 from typing import NamedTuple
 
 from ..assessment import Assessment
+from ..engine.factors import MALLAMPATI_TERM_SHARE
 from ..engine.plan import risk_for
 from ..loading import assessment_from_mapping
 
@@ -52,10 +53,10 @@ FINDINGS: tuple[Prevalence, ...] = (
     Prevalence("stridor", 0.0005, "assumed"),
 )
 
-# Mallampati class at term (not in labour) and in labour. Classes 3-4: 10.3% in the
-# 8th month and 36.8% at epidural insertion in labour (Boutonnet 2010); the split of
-# 1 from 2 and of 3 from 4 is assumed (project rule, as MALLAMPATI_TERM_SHARE).
-MALLAMPATI_AT_TERM = {1: 0.40, 2: 0.497, 3: 0.083, 4: 0.020}
+# Mallampati class at term (not in labour): the shares the estimate is centred on
+# (engine/factors.py). In labour, classes 3-4 in 36.8% at epidural insertion
+# (Boutonnet 2010); the split of 1 from 2 and of 3 from 4 is assumed (project rule).
+MALLAMPATI_AT_TERM = MALLAMPATI_TERM_SHARE
 MALLAMPATI_IN_LABOUR = {1: 0.22, 2: 0.412, 3: 0.29, 4: 0.078}
 IN_LABOUR_SHARE = 0.5  # assumed: about half of obstetric general anaesthetics are intrapartum
 PREECLAMPSIA_SHARE = 0.04  # 2-8% of pregnancies (from memory)
