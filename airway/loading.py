@@ -147,13 +147,17 @@ def _decode(text: str, source: str, fmt: str) -> object:
         raise InputError(source, [problem]) from None
 
 
-def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessment:
+def parse_assessment(
+    text: str, source: str, fmt: str | None = None, notes: list[str] | None = None
+) -> Assessment:
     """Decode TOML or JSON text and validate it.
 
     Args:
-        text: the file's contents.
+        text: the file's contents: an assessment, a saved JSON plan or a FHIR Bundle.
         source: the name shown in error messages.
         fmt: ``"toml"`` or ``"json"``; guessed from the first character when None.
+        notes: when given, what the reader should know about how a FHIR Bundle was
+            read (units converted, Observations not used) is appended to it.
     """
     # Many Windows editors and spreadsheets start UTF-8 files with a byte-order mark.
     text = text.removeprefix("\ufeff")
@@ -165,7 +169,14 @@ def parse_assessment(text: str, source: str, fmt: str | None = None) -> Assessme
     data = _decode(text, source, fmt)
     if not isinstance(data, dict):
         raise InputError(source, [Problem("(top level)", "must be a table of sections")])
-    if is_saved_plan(data):
+    if data.get("resourceType") == "Bundle":
+        from .fhir_read import assessment_data  # the FHIR models load only when needed
+
+        data, read_notes = assessment_data(data, source)
+        if notes is not None:
+            notes += [f"{source}: {note}" for note in read_notes]
+        source = f"{source} (the assessment read from this FHIR Bundle)"
+    elif is_saved_plan(data):
         # A clinic files plans, not assessments: at the reassessment the saved plan is
         # what there is. It holds the assessment it was made from, validated again here.
         inner = data["assessment"]
@@ -247,15 +258,16 @@ def read_toml_file(path: Path, error: type[InputError] = InputError) -> dict[str
     return toml_from_text(read_text_file(path, error), str(path), error)
 
 
-def read_assessment(path: str | Path) -> Assessment:
-    """Read an assessment from a ``.toml`` or ``.json`` file, or ``-`` for stdin."""
+def read_assessment(path: str | Path, notes: list[str] | None = None) -> Assessment:
+    """Read an assessment from a ``.toml`` or ``.json`` file (an assessment, a saved plan
+    or a FHIR Bundle), or ``-`` for stdin; ``notes`` as for :func:`parse_assessment`."""
     name = str(path)
     if name == "-":
         text = sys.stdin.read(MAX_BYTES["assessment"] + 1)
         if len(text) > MAX_BYTES["assessment"]:
             limit = MAX_BYTES["assessment"]
             raise InputError(name, [Problem("(file)", f"is larger than {limit:,} bytes")])
-        return parse_assessment(text, "<stdin>")
+        return parse_assessment(text, "<stdin>", notes=notes)
     file = Path(path)
     raw = read_bounded(file, "assessment")
     try:
@@ -264,4 +276,4 @@ def read_assessment(path: str | Path) -> Assessment:
         raise InputError(name, [Problem("(file)", "is not UTF-8 text")]) from None
     suffix = file.suffix.lower()
     fmt = {".toml": "toml", ".json": "json"}.get(suffix)
-    return parse_assessment(text, name, fmt)
+    return parse_assessment(text, name, fmt, notes)

@@ -72,6 +72,10 @@ def test_only_render_pdf_imports_reportlab() -> None:
     assert all(n.startswith("airway.render.pdf.") for n in _importers("reportlab"))
 
 
+def test_only_the_fhir_exchange_imports_the_fhir_models() -> None:
+    assert _importers("fhir") == {"airway.fhir_read", "airway.render.fhir"}
+
+
 def test_only_unit_files_parse_markdown_and_only_the_cli_imports_typer() -> None:
     # A unit's checklists are parsed; the web page shows the plan's Markdown as HTML.
     assert _importers("markdown_it") <= {"airway.unit.checklists", "airway.web.app"}
@@ -98,7 +102,7 @@ def test_every_command_body_at_most_20_lines() -> None:
 
 
 @pytest.mark.parametrize("command", [["quick", "--weight-kg", "90"], ["--help"]])
-def test_the_terminal_path_loads_no_pdf_or_web_code(command: list[str]) -> None:
+def test_the_terminal_path_loads_no_pdf_web_or_fhir_code(command: list[str]) -> None:
     code = (
         "import sys, io, contextlib\n"
         f"sys.argv = ['airway', *{command!r}]\n"
@@ -108,7 +112,7 @@ def test_the_terminal_path_loads_no_pdf_or_web_code(command: list[str]) -> None:
         "        main()\n"
         "    except SystemExit:\n"
         "        pass\n"
-        "heavy = [m for m in ('reportlab', 'fastapi', 'starlette', 'uvicorn', 'jinja2')"
+        "heavy = [m for m in ('reportlab', 'fastapi', 'starlette', 'uvicorn', 'jinja2', 'fhir')"
         " if m in sys.modules]\n"
         "print(' '.join(heavy))\n"
     )

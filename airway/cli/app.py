@@ -37,6 +37,7 @@ class Format(StrEnum):
     text = "text"
     markdown = "markdown"
     json = "json"
+    fhir = "fhir"
 
 
 class DataFormat(StrEnum):
@@ -124,8 +125,13 @@ def errors() -> Iterator[None]:
         raise typer.Exit(1) from None
 
 
-def render(plan: "Plan", fmt: Format, compact: bool = False) -> str:
-    """The plan in one of the text formats (the renderer imported only when used)."""
+def render(plan: "Plan", fmt: Format, compact: bool = False, pdf: bytes | None = None) -> str:
+    """The plan in one of the text formats (the renderer imported only when used); a
+    FHIR Bundle holds the printed plan when its ``pdf`` bytes are given."""
+    if fmt is Format.fhir:
+        from ..render.fhir import render_fhir
+
+        return render_fhir(plan, pdf)
     if fmt is Format.json:
         from ..render.json import render_json
 
@@ -152,15 +158,23 @@ def check_outputs(force: bool, *paths: Path | None) -> None:
         check_writable(path, force)
 
 
-def write_pdf(plan: "Plan", pdf: Path | None, paper: Paper, force: bool) -> None:
-    """Print the plan to ``pdf`` when one is named."""
+def write_pdf(plan: "Plan", pdf: Path | None, paper: Paper, force: bool) -> bytes | None:
+    """Print the plan to ``pdf`` when one is named; the bytes written, or None."""
     if pdf is None:
-        return
+        return None
     from ..output import write_atomic
     from ..render.pdf.plan import render_plan_pdf
 
-    write_atomic(pdf, render_plan_pdf(plan, paper.value), force=force)
+    printed = render_plan_pdf(plan, paper.value)
+    write_atomic(pdf, printed, force=force)
     typer.echo(f"wrote {pdf}", err=True)
+    return printed
+
+
+def echo_notes(notes: list[str]) -> None:
+    """What the reader should know about how a file was read, on stderr."""
+    for note in notes:
+        typer.echo(f"airway: note: {note}", err=True)
 
 
 def emit(text: str, output: Path | None, force: bool) -> None:

@@ -26,6 +26,7 @@ from .app import (
     app,
     check_outputs,
     data_format,
+    echo_notes,
     emit,
     errors,
     render,
@@ -89,13 +90,16 @@ def plan(
 
     if (file is None) == (not demo):
         raise typer.BadParameter("give an assessment FILE or --demo (not both)")
+    notes: list[str] = []
     with errors():
-        assessment = demo_assessment() if file is None else read_assessment(file)
-        the_plan = plan_since(assessment, load_unit(config, catalogue, checklists), since)
+        assessment = demo_assessment() if file is None else read_assessment(file, notes)
+        unit = load_unit(config, catalogue, checklists)
+        the_plan = plan_since(assessment, unit, since, notes)
+        echo_notes(notes)
         check_outputs(force, pdf, output)
-        write_pdf(the_plan, pdf, paper, force)
-        if pdf is None or output is not None:
-            emit(render(the_plan, fmt), output, force)
+        printed = write_pdf(the_plan, pdf, paper, force)
+        if pdf is None or output is not None or fmt is not Format.text:
+            emit(render(the_plan, fmt, pdf=printed), output, force)
 
 
 def _ask(prompt: str) -> str:
@@ -254,8 +258,8 @@ def quick(
         assessment = quick_assessment(**findings)
         the_plan = plan_for(assessment, load_catalogue(catalogue), () if one_screen else None)
         check_outputs(force, pdf, output)
-        write_pdf(the_plan, pdf, paper, force)
-        emit(render(the_plan, fmt, compact=not full), output, force)
+        printed = write_pdf(the_plan, pdf, paper, force)
+        emit(render(the_plan, fmt, compact=not full, pdf=printed), output, force)
 
 
 @app.command(cls=GroupedCommand)
@@ -285,8 +289,10 @@ def oxygen(
     from ..render.json import dumps
     from ..render.text import oxygenation_lines
 
+    notes: list[str] = []
     with errors():
-        oxy = oxygenation_for(read_assessment(file), feo2=end_tidal_o2)
+        oxy = oxygenation_for(read_assessment(file, notes), feo2=end_tidal_o2)
+    echo_notes(notes)
     if data_format(fmt, old_json) is DataFormat.json:
         sys.stdout.write(dumps(oxy))
     else:
@@ -316,8 +322,11 @@ def compare(
     from ..unit.config import load_unit
     from ..workflows.planning import reassess
 
+    notes: list[str] = []
     with errors():
-        comparison, after = reassess(earlier, later, load_unit(config, catalogue, checklists))
+        unit = load_unit(config, catalogue, checklists)
+        comparison, after = reassess(earlier, later, unit, notes)
+    echo_notes(notes)
     if fmt is DataFormat.json:
         sys.stdout.write(dumps(comparison))
     else:
@@ -345,11 +354,12 @@ def verify(
     from ..workflows.planning import plan_since
     from ..workflows.verify import verify_file
 
+    notes: list[str] = []
     with errors():
-        current = plan_since(
-            read_assessment(assessment_file), load_unit(config, catalogue, checklists)
-        )
+        assessment = read_assessment(assessment_file, notes)
+        current = plan_since(assessment, load_unit(config, catalogue, checklists))
         verdict = verify_file(saved, current)
+    echo_notes(notes)
     for line in verdict.findings:
         typer.echo(f"{saved}: {line}")
     if not verdict.matches:

@@ -112,6 +112,12 @@ def batch(
     pdf: Annotated[
         bool, typer.Option("--pdf", help="Also a PDF per woman.", rich_help_panel=OUT)
     ] = False,
+    fhir: Annotated[
+        bool,
+        typer.Option(
+            "--fhir", help="Also a FHIR R4 Bundle per woman (ID.fhir.json).", rich_help_panel=OUT
+        ),
+    ] = False,
     paper: PaperOpt = Paper.A4,
     force: Annotated[
         bool, typer.Option("--force", help="Replace earlier outputs.", rich_help_panel=OUT)
@@ -148,8 +154,8 @@ def batch(
     with errors():
         unit = load_unit(config, catalogue, checklists)
         result = run_batch(
-            clinic_list, out, unit.catalogue, unit.checklists, pdf=pdf, paper=paper.value,
-            force=force, resume=resume, jobs=jobs, progress=_progress_bar(),
+            clinic_list, out, unit.catalogue, unit.checklists, pdf=pdf, fhir=fhir,
+            paper=paper.value, force=force, resume=resume, jobs=jobs, progress=_progress_bar(),
         )  # fmt: skip
     for problem in result.problems:
         typer.echo(f"airway: {clinic_list}: {problem}", err=True)

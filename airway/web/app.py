@@ -123,6 +123,13 @@ def create_app(settings: Settings) -> FastAPI:
             return plan
         return Response(render_plan_pdf(plan, "A4"), media_type=PDF)
 
+    @app.post("/api/plan.fhir")
+    async def api_plan_fhir(request: Request) -> Response:
+        plan = plan_from_json(await _body(request, "api"))
+        if isinstance(plan, JSONResponse):
+            return plan
+        return Response(_fhir_bytes(plan), media_type=FHIR_JSON)
+
     @app.post("/download/{fmt}")
     async def download(request: Request, fmt: str) -> Response:
         form = await _form(request, settings)
@@ -134,6 +141,11 @@ def create_app(settings: Settings) -> FastAPI:
             "pdf": (lambda: render_plan_pdf(plan, "A4"), PDF, "pdf"),
             "markdown": (lambda: render_markdown(plan).encode(), "text/markdown", "md"),
             "json": (lambda: render_json_bytes(plan), "application/json", "json"),
+            "fhir": (
+                lambda: _fhir_bytes(plan, render_plan_pdf(plan, "A4")),
+                FHIR_JSON,
+                "fhir.json",
+            ),
         }.get(fmt)
         if made is None:
             return JSONResponse({"problems": [{"field": "format", "message": "unknown"}]}, 404)
@@ -231,6 +243,16 @@ def create_app(settings: Settings) -> FastAPI:
         return Response(pdf, media_type=PDF, headers={"Content-Disposition": disposition})
 
     return app
+
+
+FHIR_JSON = "application/fhir+json"
+
+
+def _fhir_bytes(plan: Plan, pdf: bytes | None = None) -> bytes:
+    """The plan's FHIR Bundle, as ``airway plan FILE -f fhir`` (with ``--pdf``) writes it."""
+    from ..render.fhir import render_fhir  # the FHIR models load on first use
+
+    return render_fhir(plan, pdf).encode("utf-8")
 
 
 CLINIC_LISTS_KEPT = 5  # zips held in memory for download, newest kept (project rule)

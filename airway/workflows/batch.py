@@ -28,6 +28,7 @@ from .clinic import Row, SummaryRow, read_clinic_list, summary_csv, summary_row
 
 SUMMARY_CSV = "summary.csv"
 SUMMARY_PDF = "summary.pdf"
+FHIR_SUFFIX = ".fhir.json"  # a row's FHIR Bundle beside its plan
 
 Progress = Callable[[int, int], None]
 
@@ -81,8 +82,12 @@ def decode_list(raw: bytes, name: str) -> tuple[str, str]:
 RUN_TAG = f"run{os.getpid()}"
 
 
-def _outputs(row: Row, pdf: bool) -> list[str]:
-    return [f"{row.id}.json", *([f"{row.id}.pdf"] if pdf else [])]
+def _outputs(row: Row, pdf: bool, fhir: bool = False) -> list[str]:
+    return [
+        f"{row.id}.json",
+        *([f"{row.id}.pdf"] if pdf else []),
+        *([f"{row.id}{FHIR_SUFFIX}"] if fhir else []),
+    ]
 
 
 def _remove_stale_temporaries(out: Path, names: list[str]) -> None:
@@ -92,7 +97,7 @@ def _remove_stale_temporaries(out: Path, names: list[str]) -> None:
         remove_stale_temporaries(out / name)
 
 
-def _still_matches(out: Path, row: Row, pdf: bool, plan_json: bytes) -> bool:
+def _still_matches(out: Path, row: Row, job: "_Job", plan_json: bytes) -> bool:
     """For resume: the row's outputs exist, are complete, and are exactly what the row
     gives now (an edited value in a saved plan is replanned, not kept)."""
     assert row.assessment is not None
@@ -102,7 +107,14 @@ def _still_matches(out: Path, row: Row, pdf: bool, plan_json: bytes) -> bool:
         return False
     if saved != plan_json:
         return False
-    if pdf:
+    if job.fhir:
+        try:
+            bundle = read_bounded(out / f"{row.id}{FHIR_SUFFIX}", "assessment")
+        except InputError:
+            return False
+        if not bundle.rstrip().endswith(b"}"):
+            return False
+    if job.pdf:
         try:
             data = read_bounded(out / f"{row.id}.pdf", "PDF")
         except InputError:
@@ -122,6 +134,7 @@ class _Job:
     pdf: bool
     paper: str
     resume: bool
+    fhir: bool = False
 
 
 # (row number, its summary line, files written, kept from an earlier run)
@@ -143,15 +156,22 @@ def _plan_rows(job: _Job, start: int, stop: int) -> list[Done]:
         plan = build_plan(row.assessment, job.catalogue, job.checklists)
         line = summary_row(row, plan)
         plan_json = render_json_bytes(plan)
-        if job.resume and _still_matches(job.out, row, job.pdf, plan_json):
+        if job.resume and _still_matches(job.out, row, job, plan_json):
             done.append((row.number, line, 0, True))
             continue
         files.append((job.out / f"{row.id}.json", plan_json))
+        printed = None
         if job.pdf:
             from ..render.pdf.plan import render_plan_pdf
 
-            files.append((job.out / f"{row.id}.pdf", render_plan_pdf(plan, job.paper)))
-        done.append((row.number, line, 2 if job.pdf else 1, False))
+            printed = render_plan_pdf(plan, job.paper)
+            files.append((job.out / f"{row.id}.pdf", printed))
+        if job.fhir:
+            from ..render.fhir import render_fhir
+
+            bundle = render_fhir(plan, printed).encode("utf-8")
+            files.append((job.out / f"{row.id}{FHIR_SUFFIX}", bundle))
+        done.append((row.number, line, 1 + job.pdf + job.fhir, False))
     write_group_atomic(files, tag=RUN_TAG)
     return done
 
@@ -187,6 +207,7 @@ def run_batch(
     checklists: tuple[Checklist, ...],
     *,
     pdf: bool = False,
+    fhir: bool = False,
     paper: str = "A4",
     force: bool = False,
     resume: bool = False,
@@ -205,7 +226,7 @@ def run_batch(
     out.mkdir(parents=True, exist_ok=True)
     with folder_lock(out):
         return _run_locked(
-            rows, out, catalogue, checklists, pdf, paper, force, resume, jobs, progress
+            rows, out, catalogue, checklists, pdf, paper, force, resume, jobs, progress, fhir
         )
 
 
@@ -220,8 +241,9 @@ def _run_locked(
     resume: bool,
     jobs: int | None,
     progress: Progress | None,
+    fhir: bool = False,
 ) -> BatchResult:
-    names = [n for r in rows for n in _outputs(r, pdf)] + [SUMMARY_CSV]
+    names = [n for r in rows for n in _outputs(r, pdf, fhir)] + [SUMMARY_CSV]
     if pdf:
         names.append(SUMMARY_PDF)
     _remove_stale_temporaries(out, names)
@@ -246,7 +268,7 @@ def _run_locked(
         if progress:
             progress(counts["done"], total)
 
-    job = _Job(good, out, catalogue, checklists, pdf, paper, resume)
+    job = _Job(good, out, catalogue, checklists, pdf, paper, resume, fhir)
     chunks = [(i, min(i + CHUNK, total)) for i in range(0, total, CHUNK)]
     cores = os.cpu_count() or 1
     workers = jobs or min(cores, max(1, total // ROWS_PER_WORKER))

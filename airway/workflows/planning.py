@@ -40,19 +40,24 @@ def demo_assessment() -> Assessment:
     return parse_assessment(text, "built-in demo", "toml")
 
 
-def plan_since(assessment: Assessment, unit: Unit, since: str | None = None) -> Plan:
+def plan_since(
+    assessment: Assessment, unit: Unit, since: str | None = None, notes: list[str] | None = None
+) -> Plan:
     """Her plan with the unit's files; with ``since``, what changed from that earlier
-    assessment (a file, or a saved plan standing for the assessment it was made from)."""
+    assessment (a file, a saved plan standing for the assessment it was made from, or a
+    FHIR Bundle; how it was read is added to ``notes``)."""
     plan = build_plan(assessment, unit.catalogue, unit.checklists)
     if since is None:
         return plan
-    earlier = build_plan(read_assessment(since), unit.catalogue, unit.checklists)
+    earlier = build_plan(read_assessment(since, notes), unit.catalogue, unit.checklists)
     return plan._replace(changes_since=compare_plans(earlier, plan))
 
 
-def reassess(earlier: str, later: str, unit: Unit) -> tuple[Comparison, Plan]:
-    """What changed from the earlier assessment file (or saved plan) to the later one,
-    and the later plan."""
-    before = build_plan(read_assessment(earlier), unit.catalogue, unit.checklists)
-    after = build_plan(read_assessment(later), unit.catalogue, unit.checklists)
+def reassess(
+    earlier: str, later: str, unit: Unit, notes: list[str] | None = None
+) -> tuple[Comparison, Plan]:
+    """What changed from the earlier assessment file (or saved plan, or FHIR Bundle) to
+    the later one, and the later plan."""
+    before = build_plan(read_assessment(earlier, notes), unit.catalogue, unit.checklists)
+    after = build_plan(read_assessment(later, notes), unit.catalogue, unit.checklists)
     return compare_plans(before, after), after

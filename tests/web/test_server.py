@@ -181,3 +181,19 @@ def test_a_name_the_font_cannot_draw_is_a_422_not_a_server_error() -> None:
     r = client.post("/api/plan.pdf", json=body)
     assert r.status_code == 422 and "CJK" in r.json()["problems"][0]["message"]
     assert client.post("/api/plan", json=body).status_code == 200  # JSON carries any script
+
+
+def test_the_api_reads_a_fhir_bundle_and_writes_what_plan_f_fhir_writes(runner) -> None:
+    client, _ = _client()
+    example = str(EXAMPLES[0])
+    bundle = runner.invoke(cli, ["plan", example, "-f", "fhir"]).stdout_bytes
+    fhir = client.post(
+        "/api/plan.fhir", content=bundle, headers={"Content-Type": "application/json"}
+    )
+    assert fhir.status_code == 200 and fhir.content == bundle
+    assert fhir.headers["content-type"].startswith("application/fhir+json")
+    # A Bundle is an assessment wherever one is read: the API plans from it.
+    from_bundle = client.post("/api/plan", content=bundle)
+    assert from_bundle.content == runner.invoke(cli, ["plan", example, "-f", "json"]).stdout_bytes
+    refused = client.post("/api/plan", json={"resourceType": "Bundle", "type": "document"})
+    assert refused.status_code == 422

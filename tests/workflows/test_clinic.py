@@ -347,3 +347,19 @@ def test_a_list_as_excel_saves_it_on_windows_is_read(runner, tmp_path: Path) -> 
     saved = json.loads((out / "A1.json").read_text("utf-8"))
     assert saved["assessment"]["patient"]["weight_kg"] == 80.5
     assert saved["assessment"]["assessed_on"] == "2026-11-02"
+
+
+def test_a_clinic_list_with_fhir_gives_each_woman_a_bundle_that_reads_back(
+    runner, tmp_path: Path
+) -> None:
+    from airway.loading import read_assessment
+
+    out = tmp_path / "out"
+    listed = ROOT / "examples" / "clinic-list.csv"
+    r = runner.invoke(app, ["batch", str(listed), "--out", str(out), "--fhir"])
+    assert r.exit_code in (0, 2), r.output
+    plans = sorted(out.glob("*.fhir.json"))
+    assert plans
+    for bundle in plans[:5]:
+        saved = json.loads((out / bundle.name.replace(".fhir.json", ".json")).read_text("utf-8"))
+        assert saved["input_sha256"] == plan_for(read_assessment(bundle)).input_sha256
