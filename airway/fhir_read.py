@@ -33,16 +33,18 @@ from .fhir_profile import (
     UCUM,
     answer_code,
 )
-from .fields import BY_PATH
+from .fields import BY_PATH, LABELS
 
 # (system, code) -> the path it fills; a sign's path is "preeclampsia.signs:<sign>".
 _BY_CODE: dict[tuple[str, str], str] = {(c.system, c.code): p for p, c in CODES.items()}
 _BY_CODE |= {(c.system, c.code): f"{SIGNS_PATH}:{s}" for s, c in SIGN_CODES.items()}
 
 
-def is_bundle(data: object) -> bool:
-    """True for decoded JSON that says it is a FHIR Bundle."""
-    return isinstance(data, dict) and data.get("resourceType") == "Bundle"
+def _named(path: str) -> str:
+    """A field as a clinician calls it: 'Current weight'."""
+    if path.startswith(SIGNS_PATH + ":"):
+        return SIGN_CODES[path.split(":", 1)[1]].display
+    return LABELS.get(path, path)
 
 
 class _Reading(NamedTuple):
@@ -95,7 +97,7 @@ def _quantity(path: str, observation: Any, where: str, notes: list[str]) -> floa
     if factor == 1.0:
         return value
     converted = round(value * factor, CONVERTED_DECIMALS)
-    notes.append(f"{path}: {value:g} {unit} read as {converted:g} {held}")
+    notes.append(f"{_named(path)}: {value:g} {unit} read as {converted:g} {held}")
     return converted
 
 
@@ -192,7 +194,9 @@ def _latest(readings: list[_Reading]) -> tuple[list[_Reading], list[Problem], li
             problems.append(Problem(top.where, message))
             continue
         if len(group) > 1 and top.day is not None:
-            notes.append(f"{path}: the latest of {len(group)} Observations used ({top.day})")
+            notes.append(
+                f"{_named(path)}: the latest of {len(group)} Observations used ({top.day})"
+            )
         chosen.append(top)
     return chosen, problems, notes
 
@@ -205,7 +209,8 @@ STALE_AFTER_DAYS = 14
 
 def _old_findings(chosen: list[_Reading], newest: date) -> list[str]:
     return [
-        f"{r.path} is dated {r.day}, {(newest - r.day).days} days before the newest finding; "
+        f"{_named(r.path)} is dated {r.day}, {(newest - r.day).days} days before the newest "
+        "finding; "
         "check it is still hers before relying on the plan"
         for r in chosen
         if r.day is not None and (newest - r.day).days > STALE_AFTER_DAYS

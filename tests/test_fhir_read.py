@@ -98,7 +98,7 @@ def test_the_specifications_weight_in_pounds_and_height_in_inches_are_read_in_kg
     assert a.assessed_on.isoformat() == "2016-03-28"  # the latest finding's date
     assert any("185 [lb_av] read as 83.91 kg" in n for n in notes)
     # The height is 17 years older than the weight: said, so that no one plans on it unaware.
-    assert any(n.startswith("record.json: patient.height_cm is dated 1999-07-02") for n in notes)
+    assert any(n.startswith("record.json: Height is dated 1999-07-02") for n in notes)
 
 
 def test_the_latest_observation_of_a_code_is_used() -> None:

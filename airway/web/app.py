@@ -15,6 +15,7 @@ from ..assessment import Assessment
 from ..engine.plan_model import Plan
 from ..engine.scoring import level_heading
 from ..errors import AirwayError, InputError, OutputExistsError
+from ..loading import MAX_BYTES
 from ..render.json import render_json_bytes
 from ..render.markdown import render_markdown
 from ..render.pdf.plan import render_plan_pdf
@@ -22,11 +23,26 @@ from ..render.text import shown_factors
 from ..unit.catalogue import load_catalogue
 from ..unit.checklists import load_checklists
 from ..workflows.planning import plan_for
-from .form import groups, read_form
+from .form import form_values, groups, read_form
 from .security import BODY_LIMIT_BYTES, COOKIE, HEADERS, Settings, token_ok
 
 HERE = Path(__file__).parent
 PDF = "application/pdf"
+
+
+def parse_file(data: bytes, name: str, notes: list[str]) -> Assessment:
+    """An uploaded assessment, saved plan or FHIR Bundle (the command line's reader)."""
+    from ..errors import Problem
+    from ..loading import parse_assessment
+
+    if len(data) > MAX_BYTES["assessment"]:
+        limit = MAX_BYTES["assessment"]
+        raise InputError(name, [Problem("(file)", f"is larger than {limit:,} bytes")])
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError:
+        raise InputError(name, [Problem("(file)", "is not UTF-8 text")]) from None
+    return parse_assessment(text, name, None, notes)
 
 
 def _problems(exc: InputError) -> list[dict[str, str]]:
@@ -76,6 +92,25 @@ def create_app(settings: Settings) -> FastAPI:
 
         today = {"assessed_on": date.today().isoformat()}
         return page(request, "form.html", sections=groups(today, (), {}))
+
+    @app.post("/start", response_class=HTMLResponse)
+    async def start_from_file(request: Request) -> HTMLResponse:
+        """The form filled from a file: a FHIR Bundle from the record, a saved plan or an
+        assessment; every value shown to be checked, the bedside findings still to add."""
+        form = await _form(request, settings)
+        upload = form.get("file")
+        data = await upload.read(MAX_BYTES["assessment"] + 1) if hasattr(upload, "read") else b""
+        await form.close()
+        notes: list[str] = []
+        try:
+            assessment = parse_file(data, "the file", notes)
+        except InputError as exc:
+            problems = {p.where: p.message for p in exc.problems}
+            empty = groups({}, (), {})
+            return page(request, "form.html", 422, sections=empty, file_problems=problems)
+        values, signs = form_values(assessment)
+        notes = [n.removeprefix("the file: ") for n in notes]
+        return page(request, "form.html", sections=groups(values, signs, {}), notes=notes)
 
     @app.post("/plan", response_class=HTMLResponse)
     async def plan_page(request: Request) -> HTMLResponse:
@@ -308,6 +343,7 @@ class _TooLarge(Exception):
 async def _form(request: Request, settings: Settings, check_csrf: bool = True) -> Any:
     form = await request.form()
     if check_csrf and not _same(str(form.get("csrf", "")), settings.csrf):
+        await form.close()  # an upload's temporary file goes at once
         raise _Forbidden()
     return form
 

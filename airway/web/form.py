@@ -55,6 +55,29 @@ def groups(
     return out
 
 
+def _as_typed(spec: FieldSpec, value: object) -> str:
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        return f"{value:g}"
+    return str(value)
+
+
+def form_values(assessment: Assessment) -> tuple[dict[str, str], tuple[str, ...]]:
+    """The form's answers for an assessment read from a file (to check and complete)."""
+    data = assessment.model_dump(mode="json")
+    values: dict[str, str] = {}
+    signs: tuple[str, ...] = ()
+    for spec in field_specs():
+        section, _, name = spec.path.rpartition(".")
+        value = data[section][name] if section else data[name]
+        if spec.kind == "choices":
+            signs = tuple(value)
+        elif value is not None:
+            values[spec.path] = _as_typed(spec, value)
+    return values, signs
+
+
 def read_form(
     form: Mapping[str, str], signs: tuple[str, ...]
 ) -> tuple[Assessment | None, dict[str, str]]:

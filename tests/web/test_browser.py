@@ -104,3 +104,39 @@ def test_a_clinic_doctor_enters_a_woman_with_the_keyboard_and_gets_her_plan(
     shots.mkdir(exist_ok=True)
     for name in ("form.png", "plan.png", "board.png"):
         shutil.copy(tmp_path / name, shots / name)
+
+
+def test_the_form_is_filled_from_the_records_bundle_and_downloads_one_back(
+    server, tmp_path
+) -> None:
+    import json
+
+    from playwright.sync_api import sync_playwright
+
+    from ..test_fhir_read import SPEC_BODY_HEIGHT, SPEC_BODY_WEIGHT, _bundle
+
+    record = tmp_path / "record.json"
+    record.write_text(json.dumps(_bundle(SPEC_BODY_WEIGHT, SPEC_BODY_HEIGHT)), "utf-8")
+    with sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=CHROMIUM, args=["--no-sandbox"])
+        page = browser.new_page()
+        page.goto(server.url())
+        page.set_input_files("#start-file", str(record))
+        page.get_by_role("button", name="Fill the form from the file").click()
+        page.wait_for_load_state()
+        assert page.input_value("#f-patient-weight_kg") == "83.91"
+        assert "read as 83.91 kg" in page.content()
+        page.screenshot(path=str(tmp_path / "form-from-record.png"), full_page=True)
+        _no_serious_accessibility_violation(page)
+        page.fill("#f-airway-mallampati", "2")
+        page.get_by_role("button", name="Make the plan").click()
+        page.wait_for_load_state()
+        with page.expect_download() as got:
+            page.get_by_role("button", name="Download FHIR (for the record)").click()
+        bundle = json.loads(Path(got.value.path()).read_text("utf-8"))
+        kinds = {e["resource"]["resourceType"] for e in bundle["entry"]}
+        assert {"Observation", "RiskAssessment", "DocumentReference"} <= kinds
+        browser.close()
+    shots = Path("/tmp/airway-screens")
+    shots.mkdir(exist_ok=True)
+    shutil.copy(tmp_path / "form-from-record.png", shots / "form-from-record.png")

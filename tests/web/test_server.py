@@ -197,3 +197,28 @@ def test_the_api_reads_a_fhir_bundle_and_writes_what_plan_f_fhir_writes(runner) 
     assert from_bundle.content == runner.invoke(cli, ["plan", example, "-f", "json"]).stdout_bytes
     refused = client.post("/api/plan", json={"resourceType": "Bundle", "type": "document"})
     assert refused.status_code == 422
+
+
+def test_the_form_is_filled_from_a_bundle_the_record_exported(runner) -> None:
+    """The record's weight in pounds arrives converted and said; nothing is planned until
+    the clinician has checked the values and sent the form."""
+    from ..test_fhir_read import SPEC_BODY_HEIGHT, SPEC_BODY_WEIGHT, _bundle
+
+    client, settings = _client()
+    bundle = json.dumps(_bundle(SPEC_BODY_WEIGHT, SPEC_BODY_HEIGHT)).encode()
+    r = client.post(
+        "/start",
+        data={"csrf": settings.csrf},
+        files={"file": ("record.json", bundle, "application/fhir+json")},
+    )
+    assert r.status_code == 200
+    assert 'name="patient.weight_kg" value="83.91"' in r.text
+    assert 'name="patient.height_cm" value="169.93"' in r.text
+    assert "185 [lb_av] read as 83.91 kg" in r.text
+    bad = json.dumps({"resourceType": "Bundle", "type": "document"}).encode()
+    refused = client.post(
+        "/start", data={"csrf": settings.csrf}, files={"file": ("x.json", bad, "application/json")}
+    )
+    assert refused.status_code == 422 and "could not be read" in refused.text
+    no_csrf = client.post("/start", files={"file": ("x.json", bundle, "application/json")})
+    assert no_csrf.status_code == 403
