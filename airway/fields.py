@@ -160,8 +160,80 @@ def field_specs() -> tuple[FieldSpec, ...]:
 BY_PATH: dict[str, FieldSpec] = {f.path: f for f in field_specs()}
 
 
-def parse_text(spec: FieldSpec, text: str) -> object:
-    """The value a cell or answer stands for; ``None`` when blank (not assessed).
+# What a clinician writes for a unit, by the unit the field holds, with the factor into
+# it. Exact factors: 1 lb = 0.45359237 kg, 1 in = 2.54 cm (the international yard and
+# pound, 1959); 1 stone = 14 lb; 1 g/dL = 10 g/L.
+LB_KG = 0.45359237
+IN_CM = 2.54
+UNIT_WORDS: dict[str, dict[str, float]] = {
+    "kg": dict.fromkeys(("kg", "kgs", "kilo", "kilos", "kilogram", "kilograms"), 1.0)
+    | dict.fromkeys(("lb", "lbs", "pound", "pounds"), LB_KG)
+    | {"g": 0.001},
+    "cm": {"cm": 1.0, "mm": 0.1}
+    | dict.fromkeys(("m", "metre", "metres", "meter", "meters"), 100.0)
+    | dict.fromkeys(("in", "inch", "inches", '"'), IN_CM),
+    "weeks": dict.fromkeys(("weeks", "week", "wk", "wks", "w"), 1.0),
+    "g/L": {"g/l": 1.0, "g/dl": 10.0},
+    "x10^9/L": dict.fromkeys(("x10^9/l", "x 10^9/l", "10^9/l", "x10*9/l"), 1.0),
+    "fraction": {"%": 0.01},
+}
+_NUMBER = r"(-?\d+(?:\.\d+)?)"
+_WEEKS_DAYS = re.compile(r"(\d{1,2})\s*\+\s*([0-6])")  # 36+2: 36 weeks and 2 days
+_STONES = re.compile(rf"{_NUMBER}\s*(?:st|stone|stones)(?:\s*{_NUMBER}\s*(?:lb|lbs|pounds?)?)?")
+_FEET = re.compile(rf"{_NUMBER}\s*(?:ft|feet|foot|')\s*(?:{_NUMBER}\s*(?:in|inch|inches|\"|'')?)?")
+_WITH_UNIT = re.compile(rf"{_NUMBER}\s*(.*)")
+
+
+def _converted(spec: FieldSpec, text: str, value: float) -> tuple[float, str]:
+    places = 2 if spec.unit == "weeks" else (3 if spec.unit == "fraction" else 1)
+    value = round(value, places)
+    return value, f"{text.strip()} = {value:g} {spec.unit}"
+
+
+def _measure(spec: FieldSpec, text: str) -> tuple[float, str | None]:
+    """A number in the field's unit, or written in another unit and converted into it
+    ('203 lb', '14 st 2', '5 ft 4', '1.62 m', '36+2', '11.2 g/dL')."""
+    low = text.lower().replace(",", ".").strip()
+    if spec.unit == "weeks" and (m := _WEEKS_DAYS.fullmatch(low)):
+        return _converted(spec, text, int(m[1]) + int(m[2]) / 7)
+    if spec.unit == "kg" and (m := _STONES.fullmatch(low)):
+        return _converted(spec, text, (float(m[1]) * 14 + float(m[2] or 0)) * LB_KG)
+    if spec.unit == "cm" and (m := _FEET.fullmatch(low)):
+        return _converted(spec, text, (float(m[1]) * 12 + float(m[2] or 0)) * IN_CM)
+    m = _WITH_UNIT.fullmatch(low)
+    if m is None:
+        raise ValueError(f"not a number; {spec.allowed()}")
+    number, word = float(m[1]), m[2].strip()
+    if not word or word == spec.unit.lower():
+        return number, None
+    factor = UNIT_WORDS.get(spec.unit, {}).get(word)
+    if factor is None:
+        raise ValueError(f"not a number in a unit read here; {spec.allowed()}")
+    return (number, None) if factor == 1.0 else _converted(spec, text, number * factor)
+
+
+# Plain words for a choice, by field: what a clinician writes for the model's value.
+CHOICE_WORDS: dict[str, dict[str, str]] = {
+    "preeclampsia.status": {
+        "no": "none",
+        "severe": "with_severe_features",
+        "severe_features": "with_severe_features",
+    },
+    "history.intubation": {"no": "none", "easy": "none"},
+    "preeclampsia.signs": {"swollen_tongue": "tongue_swelling", "voice_changes": "voice_change"},
+}
+
+
+def _choice_word(path: str, text: str) -> str:
+    """'Facial edema' -> 'facial_oedema'; 'severe' -> 'with_severe_features'."""
+    word = re.sub(r"(?<!o)edema", "oedema", re.sub(r"[\s\-]+", "_", text.strip().lower()))
+    word = word.removeprefix("pre_eclampsia_").removeprefix("preeclampsia_")
+    return CHOICE_WORDS.get(path, {}).get(word, word)
+
+
+def read_text(spec: FieldSpec, text: str) -> tuple[object, str | None]:
+    """The value a cell or answer stands for (``None`` when blank: not assessed), and a
+    note when it was written in another unit and converted ('203 lb = 92.1 kg').
 
     Raises:
         ValueError: the text cannot be read as this field's kind (the message says
@@ -169,48 +241,48 @@ def parse_text(spec: FieldSpec, text: str) -> object:
     """
     text = text.strip()
     if text == NOT_ASSESSED:
-        return None
-    # "92 kg" or "162cm": the field's own unit, typed out of habit, is dropped; any
-    # other unit ("203 lb", "1.62 m") stays unreadable and is asked again.
-    number = spec.kind in ("number", "integer")
-    if number and spec.unit and text.lower().endswith(spec.unit.lower()):
-        text = text[: -len(spec.unit)].rstrip()
+        return None, None
     if spec.kind == "number":
-        try:
-            return float(text.replace(",", "."))
-        except ValueError:
-            raise ValueError(f"not a number; {spec.allowed()}") from None
+        return _measure(spec, text)
     if spec.kind == "integer":
         # Classes are often written in Roman numerals ("Mallampati III"), with or
-        # without the word "class" or "category".
+        # without the word "class" or "category"; an age with its unit.
         word = re.sub(r"^(class|category|cat\.?)\s*", "", text.lower()).strip()
+        word = re.sub(r"\s*(years?|yrs?|y)$", "", word) if spec.unit == "years" else word
         if word.upper() in ROMAN:
-            return ROMAN[word.upper()]
-        text = word or text
+            return ROMAN[word.upper()], None
         try:
-            return int(text)
+            return int(word or text), None
         except ValueError:
             raise ValueError(f"not a whole number; {spec.allowed()}") from None
     if spec.kind == "yes/no":
         low = text.lower()
         if low in YES:
-            return True
+            return True, None
         if low in NO:
-            return False
+            return False, None
         raise ValueError("must be yes or no")
+    if spec.kind == "choice":
+        return _choice_word(spec.path, text), None
     if spec.kind == "choices":
-        return [part.strip() for part in text.split(LIST_SEPARATOR) if part.strip()]
+        parts = [_choice_word(spec.path, p) for p in re.split(r"[;,]", text) if p.strip()]
+        return [p for p in parts if p not in ("none", "no")], None
     if spec.kind == "date":
         # dd/mm/yyyy as UK spreadsheets write it, or ISO YYYY-MM-DD.
         day_first = re.fullmatch(r"(\d{1,2})[/.](\d{1,2})[/.](\d{4})", text)
         try:
             if day_first:
                 d, m, y = (int(x) for x in day_first.groups())
-                return date(y, m, d).isoformat()
-            return date.fromisoformat(text).isoformat()
+                return date(y, m, d).isoformat(), None
+            return date.fromisoformat(text).isoformat(), None
         except ValueError:
             raise ValueError("not a date; write it as YYYY-MM-DD or DD/MM/YYYY") from None
-    return text
+    return text, None
+
+
+def parse_text(spec: FieldSpec, text: str) -> object:
+    """:func:`read_text`'s value alone."""
+    return read_text(spec, text)[0]
 
 
 def nest(values: dict[str, object]) -> dict[str, Any]:

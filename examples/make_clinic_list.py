@@ -42,7 +42,7 @@ COLUMNS = (
 
 # Row index -> (column, bad value, what the comment says).
 BAD = {
-    17: ("patient.weight_kg", "231 lb", "deliberately bad: weight written in pounds"),
+    17: ("patient.weight_kg", "ninety", "deliberately bad: weight written in words"),
     48: ("patient.height_cm", "1.63", "deliberately bad: height in metres"),
     91: ("airway.mallampati", "5", "deliberately bad: Mallampati class 5"),
     120: ("id", "Jo Bloggs", "deliberately bad: a name where the id goes"),

@@ -117,7 +117,7 @@ def create_app(settings: Settings) -> FastAPI:
         form = await _form(request, settings)
         values = {k: v for k, v in form.items() if isinstance(v, str)}
         signs = tuple(str(v) for v in form.getlist("preeclampsia.signs"))
-        assessment, errors = read_form(values, signs)
+        assessment, errors, converted = read_form(values, signs)
         if assessment is None:
             sections = groups(values, signs, errors)
             return page(request, "form.html", 422, sections=sections, errors=errors)
@@ -128,6 +128,7 @@ def create_app(settings: Settings) -> FastAPI:
             plan=plan,
             body=_html(render_markdown(plan)),
             assessment=assessment.model_dump_json(exclude_none=True),
+            converted=converted,
         )
 
     @app.post("/api/level")
@@ -135,14 +136,16 @@ def create_app(settings: Settings) -> FastAPI:
         form = await _form(request, settings, check_csrf=False)
         values = {k: v for k, v in form.items() if isinstance(v, str)}
         signs = tuple(str(v) for v in form.getlist("preeclampsia.signs"))
-        assessment, errors = read_form(values, signs)
+        assessment, errors, converted = read_form(values, signs)
         if assessment is None:
             return JSONResponse({"heading": "", "problems": len(errors)})
         risk = plan_for(assessment, unit[0], ()).risk
         drivers = [
             f.label for f in shown_factors(risk) if f.contribution > 0 or f.role == "override"
         ]
-        return JSONResponse({"heading": level_heading(risk.level), "drivers": drivers[:4]})
+        return JSONResponse(
+            {"heading": level_heading(risk.level), "drivers": drivers[:4], "converted": converted}
+        )
 
     @app.post("/api/plan")
     async def api_plan(request: Request) -> Response:

@@ -3,10 +3,11 @@ with the same parser as clinic-list cells and guided entry (:mod:`airway.fields`
 
 from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import NamedTuple
 
 from ..assessment import Assessment
 from ..errors import InputError
-from ..fields import BY_PATH, LABELS, SECTIONS, FieldSpec, field_specs, nest, parse_text
+from ..fields import BY_PATH, LABELS, SECTIONS, FieldSpec, field_specs, nest, read_text
 from ..loading import assessment_from_mapping
 
 SECTION_TITLES = {
@@ -78,24 +79,31 @@ def form_values(assessment: Assessment) -> tuple[dict[str, str], tuple[str, ...]
     return values, signs
 
 
-def read_form(
-    form: Mapping[str, str], signs: tuple[str, ...]
-) -> tuple[Assessment | None, dict[str, str]]:
+class FormReading(NamedTuple):
+    assessment: Assessment | None  # None when any answer is wrong
+    errors: dict[str, str]  # by field path
+    converted: list[str]  # 'Current weight: 203 lb = 92.1 kg', to be shown
+
+
+def read_form(form: Mapping[str, str], signs: tuple[str, ...]) -> FormReading:
     """The assessment the form's answers give, or every problem by field path."""
     values: dict[str, object] = {}
     errors: dict[str, str] = {}
+    converted: list[str] = []
     for path, spec in BY_PATH.items():
         if spec.kind == "choices":
             values[path] = list(signs) or None
             continue
-        text = form.get(path, "")
         try:
-            values[path] = parse_text(spec, text)
+            values[path], note = read_text(spec, form.get(path, ""))
         except ValueError as exc:
             errors[path] = str(exc)
+            continue
+        if note:
+            converted.append(f"{_label(spec)}: {note}")
     if errors:
-        return None, errors
+        return FormReading(None, errors, converted)
     try:
-        return assessment_from_mapping(nest(values), "form"), {}
+        return FormReading(assessment_from_mapping(nest(values), "form"), {}, converted)
     except InputError as exc:
-        return None, {p.where: p.message for p in exc.problems}
+        return FormReading(None, {p.where: p.message for p in exc.problems}, converted)

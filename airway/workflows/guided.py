@@ -17,7 +17,7 @@ from pydantic import ValidationError
 from ..assessment import Assessment
 from ..engine.body import body_size
 from ..engine.scoring import score
-from ..fields import BY_PATH, LABELS, FieldSpec, nest, parse_text
+from ..fields import BY_PATH, LABELS, FieldSpec, nest, read_text
 from ..loading import problems_from_validation
 
 # The examination as it runs: (heading, field paths).
@@ -157,10 +157,12 @@ def guided_entry(ask: Ask, say: Say, today: date | None = None) -> Assessment:
                 n = max(0, n - 1)  # the previous question is asked again
                 values.pop(steps[n][1], None)
                 continue
-            value, problem = _answer(path, answer, values, today)
+            value, problem, converted = _answer(path, answer, values, today)
             if problem:
                 say(f"  {problem}; try again")
                 continue
+            if converted:
+                say(f"  = {converted.split(' = ', 1)[1]}")  # '203 lb' -> '= 92.1 kg'
             values[path] = value
             clinical = ("airway.", "history.", "preeclampsia.", "patient.height")
             if value is not None and path.startswith(clinical):
@@ -176,19 +178,19 @@ BACK = "back"  # an answer that returns to the previous question
 
 def _answer(
     path: str, answer: str, values: dict[str, object], today: date | None
-) -> tuple[object, str]:
-    """The value of one answer, or what is wrong with it."""
+) -> tuple[object, str, str | None]:
+    """The value of one answer, or what is wrong with it; and how it was converted."""
     spec = BY_PATH[path]
     if spec.kind == "date" and today and answer.strip().lower() == TODAY:
         answer = today.isoformat()
     try:
-        value = parse_text(spec, answer)
+        value, converted = read_text(spec, answer)
     except ValueError as exc:
-        return None, str(exc)
+        return None, str(exc), None
     if value is None and spec.required:
-        return None, "this one is needed for every plan"
+        return None, "this one is needed for every plan", None
     problems = _check({**values, path: value}, path)
-    return (None, "; ".join(problems)) if problems else (value, "")
+    return (None, "; ".join(problems), None) if problems else (value, "", converted)
 
 
 def _toml_value(value: Any) -> str:

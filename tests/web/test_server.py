@@ -222,3 +222,23 @@ def test_the_form_is_filled_from_a_bundle_the_record_exported(runner) -> None:
     assert refused.status_code == 422 and "could not be read" in refused.text
     no_csrf = client.post("/start", files={"file": ("x.json", bundle, "application/json")})
     assert no_csrf.status_code == 403
+
+
+def test_the_form_reads_clinical_wording_and_shows_what_it_converted() -> None:
+    client, settings = _client()
+    r = client.post(
+        "/plan",
+        data={
+            "csrf": settings.csrf,
+            "patient.weight_kg": "14 st 2",
+            "patient.height_cm": "5 ft 4",
+            "patient.gestation_weeks": "36+2",
+            "airway.mallampati": "III",
+            "preeclampsia.status": "severe",
+        },
+    )
+    assert r.status_code == 200, r.text
+    # 14 st 2 lb = 198 lb = 89.8 kg; 5 ft 4 in = 64 in = 162.6 cm (exact UCUM factors).
+    assert "Current weight: 14 st 2 = 89.8 kg" in r.text
+    assert "Height: 5 ft 4 = 162.6 cm" in r.text
+    assert "Gestation: 36+2 = 36.29 weeks" in r.text

@@ -12,7 +12,7 @@ import pytest
 from airway import plan_for
 from airway.cli import app
 from airway.engine.triage import FLAGS
-from airway.fields import BY_PATH, column_reference, field_specs, parse_text
+from airway.fields import BY_PATH, column_reference, field_specs, parse_text, read_text
 from airway.workflows.clinic import read_clinic_list, sort_summary, summary_row
 
 from ..conftest import ROOT
@@ -65,25 +65,60 @@ def test_cells_read_as_their_field_kind(path: str, text: str, value: object) -> 
 
 
 @pytest.mark.parametrize(
+    ("path", "text", "value"),
+    [
+        # 1 lb = 0.45359237 kg and 1 in = 2.54 cm exactly (the international yard and pound,
+        # 1959); 1 stone = 14 lb; one decimal kept.
+        ("patient.weight_kg", "203 lb", 92.1),
+        ("patient.weight_kg", "14 st 2", 89.8),  # 198 lb
+        ("patient.weight_kg", "92 kgs", 92.0),
+        ("patient.height_cm", "1.62 m", 162.0),
+        ("patient.height_cm", "5 ft 4", 162.6),  # 64 in
+        ("patient.height_cm", "5'4\"", 162.6),
+        ("airway.neck_circumference_cm", "16 in", 40.6),
+        ("patient.gestation_weeks", "36+2", 36.29),  # 36 weeks and 2 days
+        ("patient.haemoglobin_g_per_l", "11.2 g/dL", 112.0),
+        ("preeclampsia.status", "severe", "with_severe_features"),
+        ("preeclampsia.status", "without severe features", "without_severe_features"),
+        (
+            "preeclampsia.signs",
+            "Facial edema, swollen tongue",
+            ["facial_oedema", "tongue_swelling"],
+        ),
+        ("preeclampsia.signs", "none", []),
+        ("airway.mallampati", "class III", 3),
+    ],
+)
+def test_clinical_wording_and_other_units_are_read_converted(
+    path: str, text: str, value: object
+) -> None:
+    read, _ = read_text(BY_PATH[path], text)
+    assert read == (pytest.approx(value) if isinstance(value, float) else value)
+
+
+@pytest.mark.parametrize(
     ("path", "text"),
     [
-        ("patient.weight_kg", "203 lb"),
-        ("patient.weight_kg", "92 kgs"),
-        ("patient.height_cm", "1.62 m"),
-        ("patient.height_cm", "5 ft 4"),
+        ("patient.weight_kg", "203 lbz"),
+        ("patient.height_cm", "5 yards"),
         ("patient.weight_kg", "kg"),
     ],
 )
-def test_another_unit_is_never_read_as_a_number(path: str, text: str) -> None:
+def test_a_unit_not_known_is_never_read_as_a_number(path: str, text: str) -> None:
     with pytest.raises(ValueError, match="not a number"):
         parse_text(BY_PATH[path], text)
+
+
+def test_a_converted_value_says_so() -> None:
+    assert read_text(BY_PATH["patient.weight_kg"], "203 lb") == (92.1, "203 lb = 92.1 kg")
+    assert read_text(BY_PATH["patient.weight_kg"], "92 kg") == (92.0, None)
 
 
 def test_bad_rows_named_by_row_column_and_value_others_planned(tmp_path: Path) -> None:
     rows = read_clinic_list(
         HEADER
         + "A1,,80,165,2,\n"
-        + "A2,bad,231 lb,165,2,\n"
+        + "A2,bad,ninety,165,2,\n"
         + "A3,bad,80,165,5,\n"
         + "A4,bad,80,165,1,hoarse\n"
         + "A5,,95,160,3,stridor\n",
@@ -92,8 +127,10 @@ def test_bad_rows_named_by_row_column_and_value_others_planned(tmp_path: Path) -
     bad = {r.id: [str(p) for p in r.problems] for r in rows if r.assessment is None}
     assert set(bad) == {"A2", "A3", "A4"}
     assert bad["A2"] == [
-        "row 3, column 'patient.weight_kg': not a number; number 30-300 kg (got '231 lb')"
+        "row 3, column 'patient.weight_kg': not a number; number 30-300 kg (got 'ninety')"
     ]
+    pounds = read_clinic_list(HEADER + "A1,,231 lb,165,2,\n", "list.csv")
+    assert pounds[0].assessment.patient.weight_kg == pytest.approx(104.8)  # 231 x 0.45359237
     assert "row 4, column 'airway.mallampati': must be between 1 and 4 (got 5)" in bad["A3"]
     assert "row 5" in bad["A4"][0] and "hoarse" in bad["A4"][0]
 

@@ -228,3 +228,14 @@ def test_identifiers_first_and_back_returns_to_the_previous_question() -> None:
     assert prompts[0].startswith("Her name") and a.identity.name == "Ann Test"
     assert a.patient.weight_kg == 98 and prompts[5].startswith("Height")
     assert prompts[6].startswith("Current weight")
+
+
+def test_clinical_wording_is_read_and_each_conversion_said() -> None:
+    """'14 st 2', '5 ft 4' and '36+2' as the notes write them; the value in the
+    field's unit is said back (14 st 2 lb = 198 lb = 89.8 kg; 64 in = 162.6 cm)."""
+    said: list[str] = []
+    script = iter(["", "", "", "2026-12-01", "14 st 2", "5 ft 4", "", "36+2"] + [""] * 60)
+    a = guided_entry(lambda _prompt: next(script), said.append)
+    assert (a.patient.weight_kg, a.patient.height_cm) == (89.8, 162.6)
+    assert a.patient.gestation_weeks == 36.29
+    assert "  = 89.8 kg" in said and "  = 162.6 cm" in said

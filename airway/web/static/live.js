@@ -11,7 +11,9 @@
       .then(function (r) { return r.json(); })
       .then(function (d) {
         if (!d.heading) { live.textContent = ""; return; }
-        live.textContent = d.heading + (d.drivers && d.drivers.length ? " (" + d.drivers.join(", ") + ")" : "");
+        var text = d.heading + (d.drivers && d.drivers.length ? " (" + d.drivers.join(", ") + ")" : "");
+        if (d.converted && d.converted.length) { text += ". Converted: " + d.converted.join("; "); }
+        live.textContent = text;
       })
       .catch(function () { live.textContent = ""; });
   }
