@@ -66,7 +66,8 @@ def render_markdown(plan: Plan) -> str:
         add(f"> **{since_title(plan.changes_since)}**")
         add(">")
         for line in change_lines(plan.changes_since):
-            add(f"> {_esc(line)}  ")
+            mark, text = line[0], line[2:]  # '!' more dangerous, '-' otherwise
+            add(f"> - {'**!** ' if mark == '!' else ''}{_esc(text)}")
         add("")
     add(f"## {level_heading(r.level)}")
     add("")

@@ -3,6 +3,7 @@ same engine and renderers as the command line."""
 
 import io
 import secrets
+from datetime import date
 from pathlib import Path
 from typing import Any
 
@@ -22,12 +23,30 @@ from ..render.pdf.plan import render_plan_pdf
 from ..render.text import shown_factors
 from ..unit.catalogue import load_catalogue
 from ..unit.checklists import load_checklists
-from ..workflows.planning import plan_for
+from ..unit.config import Unit, UnitPaths
+from ..workflows.board import board_rows, load_plans
+from ..workflows.planning import plan_for, with_changes_since
 from .form import form_values, groups, read_form
 from .security import BODY_LIMIT_BYTES, COOKIE, HEADERS, Settings, token_ok
 
 HERE = Path(__file__).parent
 PDF = "application/pdf"
+
+
+def _earlier(plans: Path | None, name: str, data: bytes) -> Assessment:
+    """Her earlier assessment: a saved plan of the plans folder chosen by name, or an
+    uploaded file (saved plan, assessment or FHIR Bundle)."""
+    from ..errors import Problem
+    from ..loading import read_assessment
+
+    if name:
+        known = {p.stem: p for p in plans.glob("*.json")} if plans is not None else {}
+        if name not in known:
+            raise InputError("plan", [Problem("plan", "is not a saved plan of the plans folder")])
+        return read_assessment(known[name])
+    if not data:
+        raise InputError("plan", [Problem("plan", "choose a saved plan or a file")])
+    return parse_file(data, "the earlier file", [])
 
 
 def parse_file(data: bytes, name: str, notes: list[str]) -> Assessment:
@@ -88,8 +107,6 @@ def create_app(settings: Settings) -> FastAPI:
 
     @app.get("/", response_class=HTMLResponse)
     def form_page(request: Request) -> HTMLResponse:
-        from datetime import date
-
         today = {"assessed_on": date.today().isoformat()}
         return page(request, "form.html", sections=groups(today, (), {}))
 
@@ -114,21 +131,57 @@ def create_app(settings: Settings) -> FastAPI:
 
     @app.post("/plan", response_class=HTMLResponse)
     async def plan_page(request: Request) -> HTMLResponse:
+        """Her plan from the form; with an earlier assessment (a reassessment), what
+        changed since it, the dangerous changes first."""
         form = await _form(request, settings)
         values = {k: v for k, v in form.items() if isinstance(v, str)}
         signs = tuple(str(v) for v in form.getlist("preeclampsia.signs"))
+        earlier_json = values.pop("earlier", "")
         assessment, errors, converted = read_form(values, signs)
         if assessment is None:
             sections = groups(values, signs, errors)
-            return page(request, "form.html", 422, sections=sections, errors=errors)
-        plan = plan_of(assessment)
+            return page(
+                request, "form.html", 422, sections=sections, errors=errors, earlier=earlier_json
+            )
+        plan = plan_since_json(assessment, earlier_json)
+        if isinstance(plan, JSONResponse):
+            text = "Her earlier assessment could not be read: choose it again under Reassessment."
+            return page(request, "message.html", 422, text=text)
         return page(
             request,
             "plan.html",
             plan=plan,
             body=_html(render_markdown(plan)),
             assessment=assessment.model_dump_json(exclude_none=True),
+            earlier=earlier_json,
             converted=converted,
+        )
+
+    @app.get("/reassess", response_class=HTMLResponse)
+    def reassess_page(request: Request) -> HTMLResponse:
+        plans = load_plans(settings.plans)[0] if settings.plans is not None else []
+        rows = board_rows(plans, date.today())
+        return page(request, "reassess.html", rows=rows)
+
+    @app.post("/reassess", response_class=HTMLResponse)
+    async def reassess_start(request: Request) -> HTMLResponse:
+        """The form filled with her earlier findings, to be changed to today's."""
+        form = await _form(request, settings)
+        name, upload = str(form.get("plan", "")), form.get("file")
+        data = await upload.read(MAX_BYTES["assessment"] + 1) if hasattr(upload, "read") else b""
+        await form.close()
+        try:
+            earlier = _earlier(settings.plans, name, data)
+        except InputError as exc:
+            plans = load_plans(settings.plans)[0] if settings.plans is not None else []
+            rows = board_rows(plans, date.today())
+            return page(request, "reassess.html", 422, rows=rows, problem=str(exc))
+        values, signs = form_values(earlier)
+        return page(
+            request,
+            "form.html",
+            sections=groups(values, signs, {}),
+            earlier=earlier.model_dump_json(exclude_none=True),
         )
 
     @app.post("/api/level")
@@ -168,10 +221,22 @@ def create_app(settings: Settings) -> FastAPI:
             return plan
         return Response(_fhir_bytes(plan), media_type=FHIR_JSON)
 
+    def plan_since_json(assessment: Assessment, earlier_json: str) -> Plan | JSONResponse:
+        plan = plan_of(assessment)
+        if not earlier_json:
+            return plan
+        earlier = _assessment_from_json(earlier_json.encode())
+        if isinstance(earlier, JSONResponse):
+            return earlier
+        return with_changes_since(plan, earlier, Unit(*unit, paths=UnitPaths()))
+
     @app.post("/download/{fmt}")
     async def download(request: Request, fmt: str) -> Response:
         form = await _form(request, settings)
-        plan = plan_from_json(str(form.get("assessment", "")).encode())
+        later = _assessment_from_json(str(form.get("assessment", "")).encode())
+        if isinstance(later, JSONResponse):
+            return later
+        plan = plan_since_json(later, str(form.get("earlier", "")))
         if isinstance(plan, JSONResponse):
             return plan
         name = f"airway-plan-{plan.input_sha256[:12]}"
@@ -209,9 +274,7 @@ def create_app(settings: Settings) -> FastAPI:
 
     @app.get("/board", response_class=HTMLResponse)
     def board(request: Request) -> HTMLResponse:
-        from datetime import date
-
-        from ..workflows.board import board_rows, count_women, load_plans
+        from ..workflows.board import count_women
 
         if settings.plans is None:
             return page(

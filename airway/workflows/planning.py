@@ -49,8 +49,14 @@ def plan_since(
     plan = build_plan(assessment, unit.catalogue, unit.checklists)
     if since is None:
         return plan
-    earlier = build_plan(read_assessment(since, notes), unit.catalogue, unit.checklists)
-    return plan._replace(changes_since=compare_plans(earlier, plan))
+    return with_changes_since(plan, read_assessment(since, notes), unit)
+
+
+def with_changes_since(plan: Plan, earlier: Assessment, unit: Unit) -> Plan:
+    """The plan with what changed since the earlier assessment, replanned under the same
+    rules and unit files (dangerous changes first)."""
+    before = build_plan(earlier, unit.catalogue, unit.checklists)
+    return plan._replace(changes_since=compare_plans(before, plan))
 
 
 def reassess(

@@ -242,3 +242,58 @@ def test_the_form_reads_clinical_wording_and_shows_what_it_converted() -> None:
     assert "Current weight: 14 st 2 = 89.8 kg" in r.text
     assert "Height: 5 ft 4 = 162.6 cm" in r.text
     assert "Gestation: 36+2 = 36.29 weeks" in r.text
+
+
+def test_a_reassessment_starts_from_a_saved_plan_and_shows_the_dangerous_change(
+    tmp_path: Path, runner
+) -> None:
+    """Her clinic plan chosen from the plans folder fills the form; a new voice change in
+    labour gives a plan whose changes come first, marked '!', and the PDF keeps them."""
+    from airway import plan_for
+    from airway.render.json import render_json_bytes
+
+    from ..conftest import make
+
+    clinic = make(assessed_on="2026-11-02", airway={"mallampati": 2})
+    (tmp_path / "C001.json").write_bytes(render_json_bytes(plan_for(clinic)))
+    client, settings = _client(tmp_path)
+    listed = client.get("/reassess")
+    assert listed.status_code == 200 and "C001" in listed.text
+    started = client.post("/reassess", data={"csrf": settings.csrf, "plan": "C001"})
+    assert started.status_code == 200
+    assert 'name="airway.mallampati" value="2"' in started.text
+    earlier = started.text.split('name="earlier" value="')[1].split('"')[0]
+    import html
+
+    form = {
+        "csrf": settings.csrf,
+        "earlier": html.unescape(earlier),
+        "patient.weight_kg": "80",
+        "patient.height_cm": "165",
+        "patient.in_labour": "yes",
+        "airway.mallampati": "2",
+        "preeclampsia.signs": "voice_change",
+        "assessed_on": "2026-12-01",
+    }
+    later = client.post("/plan", data=form)
+    assert later.status_code == 200
+    assert "Changed since the assessment of 2026-11-02: more dangerous now" in later.text
+    assert "<li><strong>!</strong> airway level: Airway level 1 of 4" in later.text
+    pdf = client.post(
+        "/download/pdf",
+        data={
+            "csrf": settings.csrf,
+            "assessment": html.unescape(
+                later.text.split('name="assessment" value="')[1].split('"')[0]
+            ),
+            "earlier": html.unescape(earlier),
+        },
+    )
+    from io import BytesIO
+
+    from pypdf import PdfReader
+
+    text = " ".join(p.extract_text() for p in PdfReader(BytesIO(pdf.content)).pages)
+    assert "more dangerous now" in text
+    missing = client.post("/reassess", data={"csrf": settings.csrf, "plan": "../etc/passwd"})
+    assert missing.status_code == 422
