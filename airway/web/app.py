@@ -301,7 +301,7 @@ def create_app(settings: Settings) -> FastAPI:
         data = await upload.read() if hasattr(upload, "read") else b""
         await form.close()  # the upload's temporary file, at once
         try:
-            summary, made = clinic_zip(data, pdf=form.get("pdf") == "yes")
+            summary, made, encoding = clinic_zip(data, pdf=form.get("pdf") == "yes")
         except AirwayError as exc:
             return page(request, "clinic.html", 422, rows=None, problem=str(exc))
         key = secrets.token_urlsafe(12)
@@ -309,7 +309,7 @@ def create_app(settings: Settings) -> FastAPI:
         while len(lists) > CLINIC_LISTS_KEPT:
             lists.pop(next(iter(lists)))
         bad_first = sorted(summary, key=lambda s: (s.level is not None, -(s.level or 0), s.row))
-        return page(request, "clinic.html", rows=bad_first, key=key)
+        return page(request, "clinic.html", rows=bad_first, key=key, encoding=encoding)
 
     @app.get("/clinic/{key}.zip")
     def clinic_download(key: str) -> Response:
@@ -359,7 +359,7 @@ def _fhir_bytes(plan: Plan, pdf: bytes | None = None) -> bytes:
 CLINIC_LISTS_KEPT = 5  # zips held in memory for download, newest kept (project rule)
 
 
-def clinic_zip(data: bytes, pdf: bool) -> tuple[tuple[Any, ...], bytes]:
+def clinic_zip(data: bytes, pdf: bool) -> tuple[tuple[Any, ...], bytes, str]:
     """A clinic list's summary rows and a zip of its plans and summary, made in a
     temporary folder removed at once: nothing is left on disk."""
     import tempfile
@@ -379,7 +379,7 @@ def clinic_zip(data: bytes, pdf: bool) -> tuple[tuple[Any, ...], bytes]:
             for path in sorted(out.iterdir()):
                 if not path.name.startswith("."):
                     made.write(path, path.name)
-    return result.summary, buffer.getvalue()
+    return result.summary, buffer.getvalue(), result.encoding
 
 
 def _assessment_from_json(body: bytes) -> Assessment | JSONResponse:

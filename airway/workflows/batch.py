@@ -39,6 +39,7 @@ class BatchResult:
     summary: tuple[SummaryRow, ...]
     written: int  # files written this run
     kept: int  # rows kept from an earlier run (resume)
+    encoding: str = "UTF-8"  # how the list's text was read
 
     @property
     def bad_rows(self) -> tuple[Row, ...]:
@@ -50,19 +51,21 @@ class BatchResult:
         return tuple(p for r in self.bad_rows for p in r.problems)
 
     def report(self, out: Path) -> str:
-        """'planned 194 of 200 rows into plans (195 files written, 0 kept)'."""
+        """'planned 194 of 200 rows (read as UTF-8) into plans (195 files written, 0 kept)'."""
         planned = len(self.rows) - len(self.bad_rows)
         files = "file" if self.written == 1 else "files"
         return (
-            f"planned {planned} of {len(self.rows)} rows into {out} "
+            f"planned {planned} of {len(self.rows)} rows (read as {self.encoding}) into {out} "
             f"({self.written} {files} written, {self.kept} kept)"
         )
 
 
-def read_list_file(path: Path) -> tuple[Row, ...]:
-    """The rows of a clinic list file: UTF-8 with or without a byte-order mark, or
-    Windows-1252 as Excel saves a CSV on Windows; comma- or semicolon-separated."""
-    return read_clinic_list(decode_list(read_bounded(path, "clinic list"), str(path))[0], str(path))
+def read_list_file(path: Path) -> tuple[tuple[Row, ...], str]:
+    """The rows of a clinic list file and the encoding they were read in: UTF-8 with or
+    without a byte-order mark, or Windows-1252 as Excel saves a CSV on Windows; comma- or
+    semicolon-separated."""
+    text, encoding = decode_list(read_bounded(path, "clinic list"), str(path))
+    return read_clinic_list(text, str(path)), encoding
 
 
 def decode_list(raw: bytes, name: str) -> tuple[str, str]:
@@ -220,14 +223,15 @@ def run_batch(
         InputError: the list cannot be read or its header is unusable.
         OutputExistsError: ``out`` holds outputs and neither ``force`` nor ``resume``.
     """
-    rows = read_list_file(list_path)
+    rows, encoding = read_list_file(list_path)
     if out.exists() and not out.is_dir():
         raise InputError(str(out), [Problem("--out", "is a file; give a folder for the plans")])
     out.mkdir(parents=True, exist_ok=True)
     with folder_lock(out):
         return _run_locked(
-            rows, out, catalogue, checklists, pdf, paper, force, resume, jobs, progress, fhir
-        )
+            rows, out, catalogue, checklists, pdf, paper, force, resume, jobs, progress, fhir,
+            encoding,
+        )  # fmt: skip
 
 
 def _run_locked(
@@ -242,6 +246,7 @@ def _run_locked(
     jobs: int | None,
     progress: Progress | None,
     fhir: bool = False,
+    encoding: str = "UTF-8",
 ) -> BatchResult:
     names = [n for r in rows for n in _outputs(r, pdf, fhir)] + [SUMMARY_CSV]
     if pdf:
@@ -301,7 +306,7 @@ def _run_locked(
     if pdf:
         from ..render.pdf.summary import render_summary_pdf
 
-        summary_pdf = render_summary_pdf(list(summary), paper)
+        summary_pdf = render_summary_pdf(list(summary), paper, read_as=encoding)
         write_atomic(out / SUMMARY_PDF, summary_pdf, force=True, sweep_stale=False)
         written += 1
-    return BatchResult(rows=rows, summary=summary, written=written, kept=kept)
+    return BatchResult(rows=rows, summary=summary, written=written, kept=kept, encoding=encoding)

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from pydantic import ValidationError
 
 from ..assessment import Assessment
-from ..engine.decision import at_a_glance
+from ..engine.decision import SHORT, at_a_glance
 from ..engine.oxygenation import minutes_label
 from ..engine.plan_model import Plan
 from ..engine.triage import FLAGS, drivers, flags_for
@@ -154,6 +154,9 @@ class SummaryRow:
     decision: str
     flags: tuple[str, ...]
     problems: str = ""
+    # A clinic plan's decision for urgency categories 1-4 in a word each ('proceed',
+    # 'senior call', 'wake'); empty when the urgency is known and ``decision`` says it.
+    by_category: tuple[str, ...] = ()
 
 
 def summary_row(row: Row, plan: Plan | None) -> SummaryRow:
@@ -183,6 +186,7 @@ def summary_row(row: Row, plan: Plan | None) -> SummaryRow:
         ),
         decision=at_a_glance(plan.decision.recommendation, plan.decision.if_category),
         flags=flags_for(plan),
+        by_category=tuple(SHORT[rec] for _, rec in sorted(plan.decision.if_category.items())),
     )
 
 

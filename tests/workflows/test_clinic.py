@@ -257,6 +257,12 @@ def test_resume_redoes_a_row_whose_saved_plan_is_not_a_plan(runner, tmp_path: Pa
     assert (out / "A1.json").read_bytes() == good
 
 
+def _pdf_text(path: Path) -> str:
+    from pypdf import PdfReader
+
+    return "\n".join(page.extract_text() for page in PdfReader(path).pages)
+
+
 def test_pdfs_in_parallel_and_summary_pdf(runner, tmp_path: Path) -> None:
     f = _list(tmp_path, "".join(f"P{i},,{60 + 5 * i},165,{1 + i % 4},\n" for i in range(6)))
     out = tmp_path / "out"
@@ -265,6 +271,32 @@ def test_pdfs_in_parallel_and_summary_pdf(runner, tmp_path: Path) -> None:
     for i in range(6):
         assert (out / f"P{i}.pdf").read_bytes().startswith(b"%PDF")
     assert (out / "summary.pdf").read_bytes().startswith(b"%PDF")
+
+
+def test_the_summary_pdf_heads_each_level_and_says_the_decision_once_a_category(
+    runner, tmp_path: Path
+) -> None:
+    """Bad rows, then each level under a heading of its own with its count; the decision
+    by urgency category in a word each, never the same sentence on every row."""
+    out = tmp_path / "out"
+    listed = ROOT / "examples" / "clinic-list.csv"
+    assert runner.invoke(app, ["batch", str(listed), "--out", str(out), "--pdf"]).exit_code == 2
+    text = _pdf_text(out / "summary.pdf")
+    summary = list(csv_rows(out / "summary.csv"))
+    for level, label in ((4, "senior-led plan"), (3, "difficulty likely"), (1, "standard care")):
+        count = sum(1 for r in summary if r["airway_level"] == str(level))
+        assert f"Airway level {level} of 4: {label} ({count} women)" in text
+    assert text.index("Not planned: bad input") < text.index("Airway level 4 of 4")
+    assert text.index("Airway level 4 of 4") < text.index("Airway level 1 of 4")
+    assert "if urgency category" not in text
+    assert "proceed / senior call / wake / wake" in text
+
+
+def csv_rows(path: Path):  # type: ignore[no-untyped-def]
+    import csv
+
+    with path.open(encoding="utf-8") as handle:
+        yield from csv.DictReader(handle)
 
 
 def test_example_clinic_list_has_200_rows_six_marked_bad() -> None:
@@ -379,11 +411,13 @@ def test_a_list_as_excel_saves_it_on_windows_is_read(runner, tmp_path: Path) -> 
     f = tmp_path / "list.csv"
     f.write_bytes(text.encode("cp1252"))
     out = tmp_path / "out"
-    r = runner.invoke(app, ["batch", str(f), "--out", str(out)])
+    r = runner.invoke(app, ["batch", str(f), "--out", str(out), "--pdf"])
     assert r.exit_code == 0, r.stderr
     saved = json.loads((out / "A1.json").read_text("utf-8"))
     assert saved["assessment"]["patient"]["weight_kg"] == 80.5
     assert saved["assessment"]["assessed_on"] == "2026-11-02"
+    assert "read as Windows-1252" in r.stderr
+    assert "read as Windows-1252 text" in _pdf_text(out / "summary.pdf")
 
 
 def test_a_clinic_list_with_fhir_gives_each_woman_a_bundle_that_reads_back(
