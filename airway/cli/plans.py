@@ -55,7 +55,8 @@ def plan(
     file: Annotated[
         str | None,
         typer.Argument(
-            metavar="FILE", help="Assessment (.toml, .json, a saved plan), or - for stdin."
+            metavar="FILE",
+            help="Assessment (.toml, .json, a saved plan, a FHIR Bundle), or - for stdin.",
         ),
     ] = None,
     demo: Annotated[
