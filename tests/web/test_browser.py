@@ -171,3 +171,38 @@ def test_a_coordinator_reassesses_a_saved_plan_and_sees_the_danger_first(server)
         page.screenshot(path="/tmp/airway-screens/reassessed-plan.png", full_page=True)
         _no_serious_accessibility_violation(page)
         browser.close()
+
+
+def test_a_clinic_list_is_uploaded_and_the_trolley_sheets_downloaded(server, tmp_path) -> None:
+    import zipfile
+
+    from playwright.sync_api import sync_playwright
+
+    from ..conftest import ROOT
+
+    with sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=CHROMIUM, args=["--no-sandbox"])
+        page = browser.new_page()
+        page.goto(server.url())
+        page.get_by_role("link", name="Clinic list").click()
+        page.wait_for_load_state()
+        _no_serious_accessibility_violation(page)
+        page.set_input_files("#list", str(ROOT / "examples" / "clinic-list.csv"))
+        page.get_by_role("button", name="Plan the list").click()
+        page.wait_for_load_state(timeout=120_000)
+        first = page.locator("table.board tbody tr").first
+        assert "not planned" in first.inner_text()  # bad rows first
+        page.screenshot(path="/tmp/airway-screens/clinic.png", full_page=True)
+        _no_serious_accessibility_violation(page)
+        with page.expect_download() as got:
+            page.get_by_role("link", name="Download the plans and the summary (zip)").click()
+        names = zipfile.ZipFile(got.value.path()).namelist()
+        assert "summary.csv" in names and "C001.json" in names
+        page.get_by_role("link", name="Trolley sheets").click()
+        page.wait_for_load_state()
+        _no_serious_accessibility_violation(page)
+        page.screenshot(path="/tmp/airway-screens/sheets.png", full_page=True)
+        with page.expect_download() as got:
+            page.get_by_role("button", name="Download").first.click()
+        assert Path(got.value.path()).read_bytes().startswith(b"%PDF")
+        browser.close()
