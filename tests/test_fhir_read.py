@@ -303,3 +303,87 @@ def test_identifiers_from_a_bundle_never_appear_in_messages(runner, tmp_path: Pa
     result = runner.invoke(app, ["plan", str(record)])
     assert result.exit_code == 2
     assert "Secret" not in result.output and "998877" not in result.output
+
+
+CODINGS = st.sampled_from(
+    [("http://loinc.org", c) for c in ("29463-7", "8302-2", "49051-6", "777-3", "718-7", "30525-0")]
+    + [
+        ("https://airway.invalid/fhir/CodeSystem/airway", c)
+        for c in (
+            "mallampati-class",
+            "short-neck",
+            "neck-movement",
+            "oedema-stridor",
+            "assessment-label",
+        )
+    ]
+    + [("http://snomed.info/sct", "27113001"), (None, None)]
+)
+VALUES = st.one_of(
+    st.fixed_dictionaries(
+        {
+            "valueQuantity": st.fixed_dictionaries(
+                {"value": st.one_of(st.integers(-5, 10**6), st.floats(-1e6, 1e6, allow_nan=False))},
+                optional={
+                    "code": st.sampled_from(
+                        ["kg", "[lb_av]", "cm", "[in_i]", "d", "g/dL", "furlong"]
+                    ),
+                    "system": st.sampled_from(["http://unitsofmeasure.org", "urn:other"]),
+                },
+            )
+        }
+    ),
+    st.fixed_dictionaries({"valueBoolean": st.booleans()}),
+    st.fixed_dictionaries({"valueInteger": st.integers(-10, 10)}),
+    st.fixed_dictionaries({"valueString": st.text(max_size=30)}),
+    st.fixed_dictionaries(
+        {
+            "valueCodeableConcept": st.fixed_dictionaries(
+                {
+                    "coding": st.lists(
+                        st.fixed_dictionaries(
+                            {"code": st.sampled_from(["neck-movement.reduced", "x"])}
+                        ),
+                        max_size=2,
+                    )
+                }
+            )
+        }
+    ),
+    st.just({}),
+)
+
+
+@st.composite
+def hostile_observation(draw):  # type: ignore[no-untyped-def]
+    system, code = draw(CODINGS)
+    coding = {"code": code} if system is None else {"system": system, "code": code}
+    observation = {
+        "resourceType": "Observation",
+        "status": draw(
+            st.sampled_from(["final", "amended", "preliminary", "entered-in-error", "bogus"])
+        ),
+        "code": {"coding": [coding]} if code else {"text": "unnamed"},
+        **draw(VALUES),
+    }
+    if draw(st.booleans()):
+        observation["effectiveDateTime"] = draw(
+            st.sampled_from(["2026-11-02", "2026-11", "2026-11-02T09:00:00Z", "yesterday"])
+        )
+    return observation
+
+
+@given(
+    st.lists(hostile_observation(), max_size=8),
+    st.sampled_from(["collection", "searchset", "batch"]),
+)
+def test_any_bundle_is_an_assessment_or_a_clear_refusal(observations, kind) -> None:
+    """Whatever the record sends, the reader gives an assessment or an InputError that
+    names a place, never another exception."""
+    bundle = json.dumps(
+        {"resourceType": "Bundle", "type": kind, "entry": [{"resource": o} for o in observations]}
+    )
+    try:
+        parse_assessment(bundle, "record.json")
+    except InputError as exc:
+        assert exc.problems and all(p.where for p in exc.problems)
