@@ -85,7 +85,9 @@ def _show(value: Any) -> str:
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, list | tuple):
-        return ", ".join(str(v) for v in value)
+        return ", ".join(str(v).replace("_", " ") for v in value)  # 'voice change'
+    if isinstance(value, str):
+        return value.replace("_", " ")  # 'with severe features'
     return f"{value:g}" if isinstance(value, float) else str(value)
 
 
