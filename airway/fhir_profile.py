@@ -27,6 +27,8 @@ from __future__ import annotations
 import uuid
 from typing import NamedTuple
 
+from .fields import BY_PATH, IN_CM, LB_KG
+
 LOINC = "http://loinc.org"
 UCUM = "http://unitsofmeasure.org"
 OBSERVATION_CATEGORY = "http://terminology.hl7.org/CodeSystem/observation-category"
@@ -152,8 +154,8 @@ def level_code(level: int) -> str:
 # UCUM units each held unit is read from, with the factor into it. Exact factors are
 # UCUM's own definitions (see the module docstring); 10*3/uL is 10*9/L by definition.
 CONVERSIONS: dict[str, dict[str, float]] = {
-    "kg": {"kg": 1.0, "g": 0.001, "[lb_av]": 0.45359237},
-    "cm": {"cm": 1.0, "m": 100.0, "mm": 0.1, "[in_i]": 2.54, "[ft_i]": 30.48},
+    "kg": {"kg": 1.0, "g": 0.001, "[lb_av]": LB_KG},
+    "cm": {"cm": 1.0, "m": 100.0, "mm": 0.1, "[in_i]": IN_CM, "[ft_i]": 12 * IN_CM},
     "wk": {"wk": 1.0, "d": 1 / 7},
     "a": {"a": 1.0},
     "g/L": {"g/L": 1.0, "g/dL": 10.0},
@@ -176,8 +178,6 @@ def derived_id(digest: str, key: str) -> str:
 
 
 def _value_kind(path: str) -> str:
-    from .fields import BY_PATH
-
     spec = BY_PATH[path]
     if CODES[path].unit:
         return "valueQuantity"

@@ -200,9 +200,9 @@ def plan_bundle(plan: Plan, pdf: bytes | None = None) -> Bundle:
     """The FHIR Bundle of one plan: Observations, RiskAssessment, Patient if identified,
     and the printed plan as a DocumentReference when ``pdf`` is given."""
     patient = _patient(plan)
-    url = {key: f"urn:uuid:{derived_id(plan.input_sha256, key)}" for key in ("patient",)}
-    subject = Reference(reference=url["patient"]) if patient else None
-    resources: list[tuple[str, Any]] = [(url["patient"], patient)] if patient else []
+    patient_url = f"urn:uuid:{derived_id(plan.input_sha256, 'patient')}"
+    subject = Reference(reference=patient_url) if patient else None
+    resources: list[tuple[str, Any]] = [(patient_url, patient)] if patient else []
     basis: list[str] = []
     for key, code, value in _findings(plan):
         full_url = f"urn:uuid:{derived_id(plan.input_sha256, key)}"
