@@ -274,32 +274,40 @@ def simulate(p: Physiology, horizon_min: float = HORIZON_MIN, curve: bool = True
     hb_cap = HUFNER_ML_PER_G * p.haemoglobin_g_per_l  # mL O2 per L at full saturation
     flow = p.cardiac_output_l_per_min / 60.0 * (1 - p.shunt)  # non-shunted, L/s
     vo2 = p.vo2_ml_per_min / 60.0  # mL/s
+    shunt, p50, inspired = p.shunt, p.p50_mmhg, p.pharyngeal_fo2
     lung_o2, lung_n2, pool = _start(p, dry, hb_cap)
     times: dict[float, float] = {}  # threshold -> seconds at which SaO2 fell below it
+    ahead = [0.95, 0.90, 0.80]  # thresholds not yet crossed, highest first
     points: list[tuple[int, float]] = []
-    t, next_point = 0.0, 0.0
-    while t <= horizon_min * 60.0:
-        paco2 = p.paco2_mmhg + PACO2_RISE_MMHG_PER_MIN * max(0.0, t / 60.0 - 1.0)
+    t, next_point, end = 0.0, 0.0, horizon_min * 60.0
+    # Bounds are written as comparisons rather than min() and max(): a plan runs about a
+    # thousand steps, and those calls cost more than the arithmetic of a step.
+    while t <= end:
+        rise = PACO2_RISE_MMHG_PER_MIN * (t / 60.0 - 1.0)  # CO2 rises after the first minute
+        paco2 = p.paco2_mmhg + (rise if rise > 0.0 else 0.0)
         lung = lung_o2 + lung_n2
-        pao2 = max(0.0, (dry - paco2) * lung_o2 / lung) if lung > 0 else 0.0
-        end_capillary_sat = saturation(pao2, p.p50_mmhg)
+        pao2 = (dry - paco2) * lung_o2 / lung if lung > 0 else 0.0
+        pao2 = pao2 if pao2 > 0.0 else 0.0
+        end_capillary_sat = saturation(pao2, p50)
         end_capillary = hb_cap * end_capillary_sat + O2_SOLUBILITY_ML_PER_L_PER_MMHG * pao2
         venous = pool / p.blood_volume_l
-        sao2 = (1 - p.shunt) * end_capillary_sat + p.shunt * min(1.0, venous / hb_cap)
+        venous_sat = venous / hb_cap if venous < hb_cap else 1.0
+        sao2 = (1 - shunt) * end_capillary_sat + shunt * venous_sat
         if curve and t >= next_point:
             points.append((int(t), round(100 * sao2, 1)))
             next_point += CURVE_EVERY_S
-        for threshold in (0.95, 0.90, 0.80):
-            if sao2 < threshold:
-                times.setdefault(threshold, t)
-        if 0.80 in times:
+        while ahead and sao2 < ahead[0]:  # a fall past a lower one passes the higher too
+            times[ahead.pop(0)] = t
+        if not ahead:
             break
         # Long steps while saturation is high and changes slowly, short near the thresholds.
         dt = STEP_LONG_S if sao2 > STEP_LONG_ABOVE else STEP_S
-        uptake = min(lung_o2, max(0.0, flow * (end_capillary - venous)) * dt)  # mL this step
-        lung_o2 += (p.pharyngeal_fo2 - 1.0) * uptake
-        lung_n2 += (1.0 - p.pharyngeal_fo2) * uptake
-        pool = max(0.0, pool + uptake - vo2 * dt)
+        offered = flow * (end_capillary - venous) * dt  # mL the blood could take this step
+        uptake = 0.0 if offered <= 0.0 else offered if offered < lung_o2 else lung_o2
+        lung_o2 += (inspired - 1.0) * uptake
+        lung_n2 += (1.0 - inspired) * uptake
+        pool += uptake - vo2 * dt
+        pool = pool if pool > 0.0 else 0.0
         t += dt
     return Course(
         seconds_to_95=times.get(0.95),

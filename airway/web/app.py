@@ -11,6 +11,8 @@ from fastapi import FastAPI, Request
 from fastapi.responses import HTMLResponse, JSONResponse, RedirectResponse, Response
 from fastapi.staticfiles import StaticFiles
 from fastapi.templating import Jinja2Templates
+from starlette.datastructures import MutableHeaders
+from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 from ..assessment import Assessment
 from ..engine.plan_model import Plan
@@ -94,12 +96,7 @@ def create_app(settings: Settings) -> FastAPI:
     app.add_exception_handler(_Forbidden, _forbidden)
     app.add_exception_handler(AirwayError, _bad_input)
 
-    @app.middleware("http")
-    async def guard(request: Request, call_next: Any) -> Response:
-        response = await _guarded(request, call_next, settings)
-        for name, value in HEADERS.items():
-            response.headers.setdefault(name, value)
-        return response
+    app.add_middleware(_Guard, settings=settings)
 
     def page(request: Request, name: str, status: int = 200, **context: Any) -> HTMLResponse:
         context |= {"csrf": settings.csrf, "saving": settings.plans is not None}
@@ -424,8 +421,33 @@ def _same(a: str, b: str) -> bool:
     return hmac.compare_digest(a.encode(), b.encode())
 
 
-async def _guarded(request: Request, call_next: Any, settings: Settings) -> Response:
-    """Host, then token, then body size; the handler's own refusals mapped to status."""
+class _Guard:
+    """Every request passes here first: refused (wrong host, no token, too large a body)
+    or handed on, and every answer leaves with the security headers. Plain ASGI, so
+    the answer passes through as it is made."""
+
+    def __init__(self, app: ASGIApp, settings: Settings) -> None:
+        self.app, self.settings = app, settings
+
+    async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
+        if scope["type"] != "http":
+            await self.app(scope, receive, send)
+            return
+
+        async def send_with_headers(message: Message) -> None:
+            if message["type"] == "http.response.start":
+                headers = MutableHeaders(scope=message)
+                for name, value in HEADERS.items():
+                    if name not in headers:
+                        headers[name] = value
+            await send(message)
+
+        refusal = _refusal(Request(scope), self.settings)
+        await (refusal or self.app)(scope, receive, send_with_headers)
+
+
+def _refusal(request: Request, settings: Settings) -> Response | None:
+    """Host, then token, then body size: the answer that refuses the request, or None."""
     if request.headers.get("host", "") not in settings.allowed_hosts():
         return Response("unknown host\n", 421, media_type="text/plain")
     query_token = request.query_params.get("token")
@@ -448,8 +470,7 @@ async def _guarded(request: Request, call_next: Any, settings: Settings) -> Resp
     ]
     if length is not None and (not length.isdigit() or int(length) > limit):
         return Response(f"request body larger than {limit:,} bytes\n", 413, media_type="text/plain")
-    response: Response = await call_next(request)
-    return response
+    return None
 
 
 def _too_large(_request: Request, _exc: Exception) -> Response:

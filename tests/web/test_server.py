@@ -76,6 +76,27 @@ def test_pages_carry_the_safety_headers() -> None:
     assert "decision aid" in r.text and "Reassess the airway" in r.text
 
 
+def test_refusals_and_api_answers_carry_the_safety_headers_too() -> None:
+    """A 401, 421, 403 or 413 and the API's answers are pages of this origin as well: none
+    may be framed, sniffed or cached."""
+    client, settings = _client()
+    stranger, _ = _client(signed_in=False)
+    json_body = {"Content-Type": "application/json"}
+    answers = [
+        stranger.get("/"),
+        client.get("/", headers={"Host": "evil.example:8750"}),
+        client.post("/plan", data={"patient.weight_kg": "80"}),
+        client.post("/api/plan", content="x" * 2_000_000, headers=json_body),
+        client.post("/api/plan", content='{"patient": {"weight_kg": 80}}', headers=json_body),
+        client.post("/api/plan", content='{"patient": {}}', headers=json_body),
+    ]
+    assert [r.status_code for r in answers] == [401, 421, 403, 413, 200, 422]
+    for r in answers:
+        assert r.headers["cache-control"] == "no-store", r.status_code
+        assert r.headers["x-frame-options"] == "DENY", r.status_code
+        assert "frame-ancestors 'none'" in r.headers["content-security-policy"], r.status_code
+
+
 def test_a_non_loopback_bind_needs_a_long_token_from_a_file(runner, tmp_path: Path) -> None:
     r = runner.invoke(cli, ["serve", "--host", "0.0.0.0", "--no-browser"])
     assert r.exit_code == 2 and "--token-file" in r.stderr
