@@ -17,7 +17,9 @@ def serve(
             metavar="ADDRESS", help="Address to listen on (loopback unless a token file)."
         ),
     ] = "127.0.0.1",
-    port: Annotated[int, typer.Option(min=1, max=65535, help="Port to listen on.")] = 8750,
+    port: Annotated[
+        int, typer.Option(metavar="PORT", min=1, max=65535, help="Port to listen on.")
+    ] = 8750,
     plans: Annotated[
         Path | None,
         typer.Option(metavar="DIR", help="Folder for saved plans; the board reads it."),

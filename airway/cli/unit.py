@@ -225,10 +225,11 @@ def factors(fmt: DataFormatOpt = DataFormat.text, old_json: JsonAlias = False) -
 @app.command(cls=GroupedCommand)
 def population(
     women: Annotated[
-        int, typer.Option(min=100, max=200_000, help="How many invented women to draw.")
+        int,
+        typer.Option(metavar="N", min=100, max=200_000, help="How many invented women to draw."),
     ] = 20_000,
     seed: Annotated[
-        int, typer.Option(help="Seed of the draw: the same seed, the same table.")
+        int, typer.Option(metavar="N", help="Seed of the draw: the same seed, the same table.")
     ] = 2026,
 ) -> None:
     """Level shares on a model population of women at term."""

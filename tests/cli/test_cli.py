@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -273,6 +274,8 @@ COMMANDS = (
     "verify",
     "factors",
     "schema",
+    "serve",
+    "population",
 )
 
 
@@ -290,6 +293,9 @@ def test_help_reads_whole_at_80_columns(runner, name: str) -> None:
     assert max(map(len, lines)) <= 80
     body = "\n".join(line for line in lines if not line.startswith("Usage:"))
     assert "…" not in body and "..." not in body  # nothing cut short
+    # An option's value is named in words (KG, PORT, N), not by a Python type.
+    options = [line for line in lines if line.lstrip().startswith("-")]
+    assert not re.search(r"<(int|float|str|path)( range)?>", "\n".join(options)), name
     group = get_command(app)
     cmd = group.commands[name] if name else group  # type: ignore[attr-defined]
     for param in cmd.params:
