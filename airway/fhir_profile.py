@@ -8,13 +8,14 @@ Codes, with where each was checked:
 
 - LOINC 29463-7 body weight and 8302-2 body height: the FHIR R4 specification's example
   Observations ``observation-example`` (185 [lb_av]) and ``observation-example-body-height``
-  (66.9 [in_i]); 39156-5 body mass index: the FHIR vital-signs profile (from memory).
+  (66.9 [in_i]); 39156-5 body mass index: the FHIR BMI profile
+  (http://hl7.org/fhir/StructureDefinition/bmi fixes this code, with UCUM kg/m2).
 - LOINC 49051-6 gestational age in weeks: a member of the LOINC gestational-age group
   (component LP19507-0) as the HL7 Europe Patient Summary value set expands it.
 - LOINC 777-3 platelets in blood by automated count and 718-7 haemoglobin in blood: the
   US Core implementation guide's example Observations (cbc-platelets, cbc).
-- LOINC 30525-0 age: used with UCUM ``a`` in published questionnaires and messages (from
-  memory; the LOINC table itself was not at hand).
+- LOINC 30525-0 age: the HL7 Terminology value set
+  v3-LOINCObservationActContextAgeDefinitionCode, whose one member it is ("Age").
 - UCUM factors: [lb_av] = 453.59237 g and [in_i] = 2.54 cm exactly, [ft_i] = 12 [in_i]
   (the UCUM specification, after the international yard and pound of 1959; from memory).
 

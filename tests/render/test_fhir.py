@@ -137,11 +137,11 @@ def test_every_field_a_plan_reads_has_a_code() -> None:
 LOINC_CODES = {  # the code, and where it was checked (airway.fhir_profile)
     "29463-7": "FHIR R4 example observation-example",
     "8302-2": "FHIR R4 example observation-example-body-height",
-    "39156-5": "FHIR vital-signs profile (from memory)",
+    "39156-5": "FHIR BMI profile, StructureDefinition/bmi",
     "49051-6": "LOINC gestational-age group, HL7 Europe value set",
     "777-3": "US Core example cbc-platelets",
     "718-7": "US Core example cbc",
-    "30525-0": "from memory",
+    "30525-0": "HL7 Terminology v3-LOINCObservationActContextAgeDefinitionCode",
 }
 # UCUM codes (the UCUM specification's table of units, from memory).
 UCUM_CODES = {"kg", "g", "[lb_av]", "cm", "m", "mm", "[in_i]", "[ft_i]", "wk", "d", "a"}
