@@ -79,7 +79,7 @@ def test_pages_carry_the_safety_headers() -> None:
 def test_refusals_and_api_answers_carry_the_safety_headers_too() -> None:
     """A 401, 421, 403 or 413 and the API's answers are pages of this origin as well: none
     may be framed, sniffed or cached."""
-    client, settings = _client()
+    client, _ = _client()
     stranger, _ = _client(signed_in=False)
     json_body = {"Content-Type": "application/json"}
     answers = [
