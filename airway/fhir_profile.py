@@ -178,7 +178,8 @@ def derived_id(digest: str, key: str) -> str:
     return str(uuid.uuid5(ID_NAMESPACE, f"{digest}/{key}"))
 
 
-def _value_kind(path: str) -> str:
+def value_kind(path: str) -> str:
+    """The Observation's value[x] element a field is written in."""
     spec = BY_PATH[path]
     if CODES[path].unit:
         return "valueQuantity"
@@ -200,7 +201,7 @@ def profile_table() -> str:
         also = ", ".join(f"`{u}`" for u in CONVERSIONS.get(code.unit, {}) if u != code.unit)
         unit = f"`{code.unit}`" + (f" ({also})" if also else "") if code.unit else "-"
         lines.append(
-            f"| `{path}` | {system} `{code.code}` | {code.display} | {_value_kind(path)} | {unit} |"
+            f"| `{path}` | {system} `{code.code}` | {code.display} | {value_kind(path)} | {unit} |"
         )
     for sign, code in SIGN_CODES.items():
         lines.append(

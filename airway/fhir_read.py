@@ -33,7 +33,7 @@ from .fhir_profile import (
     UCUM,
     answer_code,
 )
-from .fields import BY_PATH, LABELS
+from .fields import BY_PATH, LABELS, nest
 
 # (system, code) -> the path it fills; a sign's path is "preeclampsia.signs:<sign>".
 _BY_CODE: dict[tuple[str, str], str] = {(c.system, c.code): p for p, c in CODES.items()}
@@ -217,19 +217,6 @@ def _old_findings(chosen: list[_Reading], newest: date) -> list[str]:
     ]
 
 
-def _put(mapping: dict[str, Any], path: str, value: object) -> None:
-    if path.startswith(SIGNS_PATH + ":"):
-        if value is True:
-            section = mapping.setdefault("preeclampsia", {})
-            section.setdefault("signs", []).append(path.split(":", 1)[1])
-        return
-    *sections, name = path.split(".")
-    target = mapping
-    for section in sections:
-        target = target.setdefault(section, {})
-    target[name] = value
-
-
 def assessment_data(data: dict[str, Any], source: str) -> tuple[dict[str, Any], list[str]]:
     """The assessment a Bundle holds, as a mapping to validate, and notes for the reader.
 
@@ -283,10 +270,10 @@ def assessment_data(data: dict[str, Any], source: str) -> tuple[dict[str, Any], 
     problems += conflicts
     if problems:
         raise InputError(source, problems)
-    mapping: dict[str, Any] = {}
-    for reading in chosen:
-        _put(mapping, reading.path, reading.value)
-        notes += reading.notes
+    flat: dict[str, object] = {r.path: r.value for r in chosen if ":" not in r.path}
+    signs = [r.path.split(":", 1)[1] for r in chosen if ":" in r.path and r.value is True]
+    mapping = nest({**flat, SIGNS_PATH: signs or None})
+    notes += [note for r in chosen for note in r.notes]
     if identity := _identity(patients, source):
         mapping["identity"] = identity
     days = [r.day for r in chosen if r.day is not None]

@@ -300,6 +300,16 @@ def nest(values: dict[str, object]) -> dict[str, Any]:
     return out
 
 
+def flatten(data: dict[str, Any]) -> dict[str, Any]:
+    """:func:`nest` undone for an assessment's plain data: every field path and its value
+    (None when not assessed)."""
+    out: dict[str, Any] = {}
+    for path in BY_PATH:
+        section, _, name = path.rpartition(".")
+        out[path] = data[section][name] if section else data[name]
+    return out
+
+
 def _meaning(spec: FieldSpec) -> str:
     """The model's description without the unit and range the 'allowed' column gives,
     or the finding's name where the model has no description (or, for a yes/no

@@ -261,19 +261,24 @@ def read_toml_file(path: Path, error: type[InputError] = InputError) -> dict[str
 def read_assessment(path: str | Path, notes: list[str] | None = None) -> Assessment:
     """Read an assessment from a ``.toml`` or ``.json`` file (an assessment, a saved plan
     or a FHIR Bundle), or ``-`` for stdin; ``notes`` as for :func:`parse_assessment`."""
-    name = str(path)
-    if name == "-":
-        text = sys.stdin.read(MAX_BYTES["assessment"] + 1)
-        if len(text) > MAX_BYTES["assessment"]:
-            limit = MAX_BYTES["assessment"]
-            raise InputError(name, [Problem("(file)", f"is larger than {limit:,} bytes")])
-        return parse_assessment(text, "<stdin>", notes=notes)
+    if str(path) == "-":
+        raw = sys.stdin.buffer.read(MAX_BYTES["assessment"] + 1)
+        return assessment_from_bytes(raw, "<stdin>", None, notes)
     file = Path(path)
-    raw = read_bounded(file, "assessment")
+    fmt = {".toml": "toml", ".json": "json"}.get(file.suffix.lower())
+    return assessment_from_bytes(read_bounded(file, "assessment"), str(path), fmt, notes)
+
+
+def assessment_from_bytes(
+    raw: bytes, name: str, fmt: str | None = None, notes: list[str] | None = None
+) -> Assessment:
+    """An assessment (or saved plan, or FHIR Bundle) from a file's bytes, as read from
+    disk, stdin or an upload: at most MAX_BYTES["assessment"], UTF-8 text."""
+    limit = MAX_BYTES["assessment"]
+    if len(raw) > limit:
+        raise InputError(name, [Problem("(file)", f"is larger than {limit:,} bytes")])
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError:
         raise InputError(name, [Problem("(file)", "is not UTF-8 text")]) from None
-    suffix = file.suffix.lower()
-    fmt = {".toml": "toml", ".json": "json"}.get(suffix)
     return parse_assessment(text, name, fmt, notes)

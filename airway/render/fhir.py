@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import base64
 import hashlib
-import json
 from decimal import Decimal
 from typing import Any
 
@@ -51,8 +50,10 @@ from ..fhir_profile import (
     answer_code,
     derived_id,
     level_code,
+    value_kind,
 )
-from ..fields import BY_PATH, field_specs
+from ..fields import BY_PATH, field_specs, flatten
+from .json import dumps
 
 # Sections whose findings the airway level is estimated from (the RiskAssessment's
 # basis); the context and the label inform the decision and the page, not the level.
@@ -70,6 +71,11 @@ def _quantity(value: float, unit: str) -> Quantity:
     return Quantity(value=Decimal(repr(float(value))), unit=unit, system=UCUM, code=unit)
 
 
+def _url(plan: Plan, key: str) -> str:
+    """The Bundle-local address of one of the plan's resources."""
+    return f"urn:uuid:{derived_id(plan.input_sha256, key)}"
+
+
 def _refs(urls: list[str]) -> list[Reference]:
     return [Reference(reference=url) for url in urls]
 
@@ -81,27 +87,22 @@ def _concept(code: Code) -> CodeableConcept:
 
 def _value(path: str, value: object) -> dict[str, Any]:
     """The Observation's value[x] for one field's value."""
-    spec, code = BY_PATH[path], CODES[path]
-    if isinstance(value, bool):
-        return {"valueBoolean": value}
-    if code.unit:  # a quantity (age included: 'a')
+    kind, code = value_kind(path), CODES[path]
+    if kind == "valueQuantity":  # age included: 'a'
         assert isinstance(value, int | float)
-        return {"valueQuantity": _quantity(value, code.unit)}
-    if spec.kind == "integer":
-        return {"valueInteger": value}
-    if spec.kind == "choice":
+        return {kind: _quantity(value, code.unit)}
+    if kind == "valueCodeableConcept":
         answer = Coding(system=code.system, code=answer_code(path, str(value)), display=str(value))
-        return {"valueCodeableConcept": CodeableConcept(coding=[answer], text=str(value))}
-    return {"valueString": value}
+        return {kind: CodeableConcept(coding=[answer], text=str(value))}
+    return {kind: value}
 
 
 def _findings(plan: Plan) -> list[tuple[str, Code, dict[str, Any]]]:
     """(key, code, value[x]) for every finding given, in examination order."""
-    data = plan.assessment.model_dump()
+    values = flatten(plan.assessment.model_dump())
     out = []
     for spec in field_specs():
-        section, _, name = spec.path.rpartition(".")
-        value = data[section][name] if section else data[name]
+        value = values[spec.path]
         if spec.path == SIGNS_PATH:
             out += [(f"{SIGNS_PATH}:{s}", SIGN_CODES[s], {"valueBoolean": True}) for s in value]
         elif value is not None and spec.path in CODES:
@@ -200,27 +201,24 @@ def plan_bundle(plan: Plan, pdf: bytes | None = None) -> Bundle:
     """The FHIR Bundle of one plan: Observations, RiskAssessment, Patient if identified,
     and the printed plan as a DocumentReference when ``pdf`` is given."""
     patient = _patient(plan)
-    patient_url = f"urn:uuid:{derived_id(plan.input_sha256, 'patient')}"
+    patient_url = _url(plan, "patient")
     subject = Reference(reference=patient_url) if patient else None
     resources: list[tuple[str, Any]] = [(patient_url, patient)] if patient else []
     basis: list[str] = []
     for key, code, value in _findings(plan):
-        full_url = f"urn:uuid:{derived_id(plan.input_sha256, key)}"
+        full_url = _url(plan, key)
         resources.append((full_url, _observation(plan, key, code, value, subject)))
         if key.split(".")[0].split(":")[0] in _BASIS_SECTIONS:
             basis.append(full_url)
     if not plan.body.height_assumed:  # a BMI on an assumed height is not hers to file
-        sources = [
-            f"urn:uuid:{derived_id(plan.input_sha256, k)}"
-            for k in ("patient.weight_kg", "patient.height_cm")
-        ]
-        bmi_url = f"urn:uuid:{derived_id(plan.input_sha256, 'bmi')}"
+        sources = [_url(plan, k) for k in ("patient.weight_kg", "patient.height_cm")]
+        bmi_url = _url(plan, "bmi")
         resources.append((bmi_url, _bmi(plan, subject, sources)))
         basis.append(bmi_url)
-    risk_url = f"urn:uuid:{derived_id(plan.input_sha256, 'risk')}"
+    risk_url = _url(plan, "risk")
     resources.append((risk_url, _risk_assessment(plan, subject, basis)))
     if pdf is not None:
-        doc_url = f"urn:uuid:{derived_id(plan.input_sha256, 'document')}"
+        doc_url = _url(plan, "document")
         resources.append((doc_url, _document(plan, pdf, subject)))
     g = plan.generated_by
     return Bundle(
@@ -239,9 +237,8 @@ def plan_bundle(plan: Plan, pdf: bytes | None = None) -> Bundle:
 
 
 def dumps_resource(resource: Any) -> str:
-    """A resource as sorted, indented JSON text with a trailing newline."""
-    data = resource.model_dump(mode="json", by_alias=True, exclude_none=True)
-    return json.dumps(data, sort_keys=True, indent=2, ensure_ascii=False) + "\n"
+    """A resource as the plan's JSON is written: sorted, indented, a trailing newline."""
+    return dumps(resource.model_dump(mode="json", by_alias=True, exclude_none=True))
 
 
 def render_fhir(plan: Plan, pdf: bytes | None = None) -> str:
@@ -263,7 +260,7 @@ def code_system() -> CodeSystem:
         ]
     concepts += [CodeSystemConcept(code=c.code, display=c.display) for c in SIGN_CODES.values()]
     concepts += [
-        CodeSystemConcept(code=level_code(n), display=f"{level_heading(n)}")
+        CodeSystemConcept(code=level_code(n), display=level_heading(n))
         for n in sorted(LEVEL_LABELS)
     ]
     return CodeSystem(

@@ -17,8 +17,8 @@ from starlette.types import ASGIApp, Message, Receive, Scope, Send
 from ..assessment import Assessment
 from ..engine.plan_model import Plan
 from ..engine.scoring import level_heading
-from ..errors import AirwayError, InputError, OutputExistsError
-from ..loading import MAX_BYTES
+from ..errors import AirwayError, InputError, OutputExistsError, Problem
+from ..loading import MAX_BYTES, assessment_from_bytes, read_assessment
 from ..render.json import render_json_bytes
 from ..render.markdown import render_markdown
 from ..render.pdf.plan import render_plan_pdf
@@ -38,9 +38,6 @@ PDF = "application/pdf"
 def _earlier(plans: Path | None, name: str, data: bytes) -> Assessment:
     """Her earlier assessment: a saved plan of the plans folder chosen by name, or an
     uploaded file (saved plan, assessment or FHIR Bundle)."""
-    from ..errors import Problem
-    from ..loading import read_assessment
-
     if name:
         known = {p.stem: p for p in plans.glob("*.json")} if plans is not None else {}
         if name not in known:
@@ -48,22 +45,7 @@ def _earlier(plans: Path | None, name: str, data: bytes) -> Assessment:
         return read_assessment(known[name])
     if not data:
         raise InputError("plan", [Problem("plan", "choose a saved plan or a file")])
-    return parse_file(data, "the earlier file", [])
-
-
-def parse_file(data: bytes, name: str, notes: list[str]) -> Assessment:
-    """An uploaded assessment, saved plan or FHIR Bundle (the command line's reader)."""
-    from ..errors import Problem
-    from ..loading import parse_assessment
-
-    if len(data) > MAX_BYTES["assessment"]:
-        limit = MAX_BYTES["assessment"]
-        raise InputError(name, [Problem("(file)", f"is larger than {limit:,} bytes")])
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError:
-        raise InputError(name, [Problem("(file)", "is not UTF-8 text")]) from None
-    return parse_assessment(text, name, None, notes)
+    return assessment_from_bytes(data, "the earlier file")
 
 
 def _problems(exc: InputError) -> list[dict[str, str]]:
@@ -111,13 +93,10 @@ def create_app(settings: Settings) -> FastAPI:
     async def start_from_file(request: Request) -> HTMLResponse:
         """The form filled from a file: a FHIR Bundle from the record, a saved plan or an
         assessment; every value shown to be checked, the bedside findings still to add."""
-        form = await _form(request, settings)
-        upload = form.get("file")
-        data = await upload.read(MAX_BYTES["assessment"] + 1) if hasattr(upload, "read") else b""
-        await form.close()
+        data = await _upload(await _form(request, settings), "file")
         notes: list[str] = []
         try:
-            assessment = parse_file(data, "the file", notes)
+            assessment = assessment_from_bytes(data, "the file", None, notes)
         except InputError as exc:
             problems = {p.where: p.message for p in exc.problems}
             empty = groups({}, (), {})
@@ -154,25 +133,24 @@ def create_app(settings: Settings) -> FastAPI:
             converted=converted,
         )
 
+    def saved_plans() -> list[Any]:
+        """The plans folder's plans as board rows, the women on the ward now first."""
+        plans = load_plans(settings.plans)[0] if settings.plans is not None else []
+        return board_rows(plans, date.today())
+
     @app.get("/reassess", response_class=HTMLResponse)
     def reassess_page(request: Request) -> HTMLResponse:
-        plans = load_plans(settings.plans)[0] if settings.plans is not None else []
-        rows = board_rows(plans, date.today())
-        return page(request, "reassess.html", rows=rows)
+        return page(request, "reassess.html", rows=saved_plans())
 
     @app.post("/reassess", response_class=HTMLResponse)
     async def reassess_start(request: Request) -> HTMLResponse:
         """The form filled with her earlier findings, to be changed to today's."""
         form = await _form(request, settings)
-        name, upload = str(form.get("plan", "")), form.get("file")
-        data = await upload.read(MAX_BYTES["assessment"] + 1) if hasattr(upload, "read") else b""
-        await form.close()
+        name, data = str(form.get("plan", "")), await _upload(form, "file")
         try:
             earlier = _earlier(settings.plans, name, data)
         except InputError as exc:
-            plans = load_plans(settings.plans)[0] if settings.plans is not None else []
-            rows = board_rows(plans, date.today())
-            return page(request, "reassess.html", 422, rows=rows, problem=str(exc))
+            return page(request, "reassess.html", 422, rows=saved_plans(), problem=str(exc))
         values, signs = form_values(earlier)
         return page(
             request,
@@ -409,6 +387,15 @@ async def _form(request: Request, settings: Settings, check_csrf: bool = True) -
         await form.close()  # an upload's temporary file goes at once
         raise _Forbidden()
     return form
+
+
+async def _upload(form: Any, field: str) -> bytes:
+    """An uploaded assessment's bytes (one past the limit, so a larger file is refused,
+    not cut short); the form's temporary files removed at once."""
+    upload = form.get(field)
+    data = await upload.read(MAX_BYTES["assessment"] + 1) if hasattr(upload, "read") else b""
+    await form.close()
+    return bytes(data)
 
 
 class _Forbidden(Exception):

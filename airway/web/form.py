@@ -7,7 +7,7 @@ from typing import NamedTuple
 
 from ..assessment import Assessment
 from ..errors import InputError
-from ..fields import BY_PATH, LABELS, SECTIONS, FieldSpec, field_specs, nest, read_text
+from ..fields import BY_PATH, LABELS, SECTIONS, FieldSpec, field_specs, flatten, nest, read_text
 from ..loading import assessment_from_mapping
 
 SECTION_TITLES = {
@@ -56,7 +56,7 @@ def groups(
     return out
 
 
-def _as_typed(spec: FieldSpec, value: object) -> str:
+def _as_typed(value: object) -> str:
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, float):
@@ -66,16 +66,15 @@ def _as_typed(spec: FieldSpec, value: object) -> str:
 
 def form_values(assessment: Assessment) -> tuple[dict[str, str], tuple[str, ...]]:
     """The form's answers for an assessment read from a file (to check and complete)."""
-    data = assessment.model_dump(mode="json")
+    given = flatten(assessment.model_dump(mode="json"))
     values: dict[str, str] = {}
     signs: tuple[str, ...] = ()
     for spec in field_specs():
-        section, _, name = spec.path.rpartition(".")
-        value = data[section][name] if section else data[name]
+        value = given[spec.path]
         if spec.kind == "choices":
             signs = tuple(value)
         elif value is not None:
-            values[spec.path] = _as_typed(spec, value)
+            values[spec.path] = _as_typed(value)
     return values, signs
 
 

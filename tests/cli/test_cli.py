@@ -238,6 +238,11 @@ def test_stdin(runner) -> None:
     assert r.exit_code == 0 and json.loads(r.stdout)["risk"]["level"] == 1
 
 
+def test_stdin_that_is_not_utf8_is_refused_as_a_file_is(runner) -> None:
+    r = runner.invoke(app, ["plan", "-"], input=b"patient = {weight_kg = 80}\n# \xff\n")
+    assert r.exit_code == 2 and "not UTF-8" in r.stderr and "Traceback" not in r.output
+
+
 def test_factors_schema_version(runner) -> None:
     r = runner.invoke(app, ["factors"])
     assert r.exit_code == 0 and "mallampati_4" in r.stdout and "Rocke 1992" in r.stdout
